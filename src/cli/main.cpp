@@ -1,0 +1,2 @@
+// Entry point placeholder; the subcommands are wired in src/cli/*.cpp.
+int main() { return 0; }

@@ -1,0 +1,107 @@
+#include "netfold/netlist.hpp"
+
+#include <cmath>
+#include <numbers>
+
+namespace netfold {
+
+std::string_view kind_keyword(ElementKind kind) {
+  switch (kind) {
+    case ElementKind::resistor: return "resistor";
+    case ElementKind::capacitor: return "capacitor";
+    case ElementKind::inductor: return "inductor";
+    case ElementKind::voltage_source: return "voltage-source";
+    case ElementKind::current_source: return "current-source";
+    case ElementKind::switch_: return "switch";
+    case ElementKind::vcvs: return "vcvs";
+    case ElementKind::vccs: return "vccs";
+    case ElementKind::ccvs: return "ccvs";
+    case ElementKind::cccs: return "cccs";
+  }
+  return "element";
+}
+
+bool is_storage(ElementKind kind) { return kind == ElementKind::capacitor || kind == ElementKind::inductor; }
+
+bool is_independent_source(ElementKind kind) {
+  return kind == ElementKind::voltage_source || kind == ElementKind::current_source;
+}
+
+double Waveform::level_at(double t) const {
+  double v = dc;
+  for (const auto& s : steps)
+    if (t >= s.time) v += s.level;
+  return v;
+}
+
+double Waveform::value_at(double t) const {
+  double v = level_at(t);
+  for (const auto& s : sinusoids) v += s.amplitude * std::cos(2.0 * std::numbers::pi * s.frequency * t + s.phase);
+  return v;
+}
+
+Dimension Observable::dimension() const {
+  switch (kind) {
+    case ObservableKind::element_current: return Dimension::current;
+    case ObservableKind::element_power: return Dimension::power;
+    default: return Dimension::voltage;
+  }
+}
+
+std::optional<ElementId> Circuit::find_element(std::string_view name) const {
+  auto it = element_index_.find(std::string(name));
+  if (it == element_index_.end()) return std::nullopt;
+  return it->second;
+}
+
+std::optional<NodeId> Circuit::find_node(std::string_view name) const {
+  auto it = node_index_.find(std::string(name));
+  if (it == node_index_.end()) return std::nullopt;
+  return it->second;
+}
+
+std::vector<ElementId> Circuit::storage_elements() const {
+  std::vector<ElementId> ids;
+  for (ElementId i = 0; i < elements_.size(); ++i)
+    if (is_storage(elements_[i].kind)) ids.push_back(i);
+  return ids;
+}
+
+Diagnostic Circuit::diagnostic(SourceLoc loc, std::string message) const {
+  return make_diagnostic(*source_, loc, std::move(message));
+}
+
+CircuitBuilder::CircuitBuilder(std::shared_ptr<const SourceText> source) { circuit_.source_ = std::move(source); }
+
+NodeId CircuitBuilder::node(std::string_view name) {
+  auto [it, inserted] = circuit_.node_index_.try_emplace(std::string(name), static_cast<NodeId>(circuit_.nodes_.size()));
+  if (inserted) circuit_.nodes_.emplace_back(name);
+  return it->second;
+}
+
+std::optional<NodeId> CircuitBuilder::find_node(std::string_view name) const { return circuit_.find_node(name); }
+
+std::optional<ElementId> CircuitBuilder::add_element(Element element) {
+  auto id = static_cast<ElementId>(circuit_.elements_.size());
+  auto [it, inserted] = circuit_.element_index_.try_emplace(element.name, id);
+  if (!inserted) return std::nullopt;
+  circuit_.elements_.push_back(std::move(element));
+  return id;
+}
+
+std::optional<ElementId> CircuitBuilder::find_element(std::string_view name) const {
+  return circuit_.find_element(name);
+}
+
+void CircuitBuilder::set_ground(std::string_view name, SourceLoc loc) {
+  circuit_.ground_ = node(name);
+  circuit_.ground_loc_ = loc;
+  ground_set_ = true;
+}
+
+Circuit CircuitBuilder::build() && {
+  if (!ground_set_) circuit_.ground_ = node("gnd");
+  return std::move(circuit_);
+}
+
+}  // namespace netfold

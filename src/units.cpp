@@ -1,0 +1,202 @@
+#include "netfold/units.hpp"
+
+#include <array>
+#include <charconv>
+#include <cmath>
+#include <numbers>
+
+#include <fmt/format.h>
+
+#include "netfold/diagnostics.hpp"
+
+namespace netfold {
+
+std::string_view dimension_noun(Dimension d) {
+  switch (d) {
+    case Dimension::ratio: return "a plain number";
+    case Dimension::resistance: return "a resistance";
+    case Dimension::conductance: return "a conductance";
+    case Dimension::capacitance: return "a capacitance";
+    case Dimension::inductance: return "an inductance";
+    case Dimension::voltage: return "a voltage";
+    case Dimension::current: return "a current";
+    case Dimension::power: return "a power";
+    case Dimension::energy: return "an energy";
+    case Dimension::action: return "an I²t (A2s)";
+    case Dimension::time: return "a time";
+    case Dimension::frequency: return "a frequency";
+    case Dimension::angle: return "an angle";
+    case Dimension::percent: return "a percentage";
+  }
+  return "a value";
+}
+
+std::string_view dimension_symbol(Dimension d) {
+  switch (d) {
+    case Dimension::ratio: return "";
+    case Dimension::resistance: return "Ω";
+    case Dimension::conductance: return "S";
+    case Dimension::capacitance: return "F";
+    case Dimension::inductance: return "H";
+    case Dimension::voltage: return "V";
+    case Dimension::current: return "A";
+    case Dimension::power: return "W";
+    case Dimension::energy: return "J";
+    case Dimension::action: return "A²s";
+    case Dimension::time: return "s";
+    case Dimension::frequency: return "Hz";
+    case Dimension::angle: return "°";
+    case Dimension::percent: return "%";
+  }
+  return "";
+}
+
+namespace {
+
+struct UnitEntry {
+  std::string_view text;
+  Dimension dimension;
+  double scale;
+  bool rms;
+  bool takes_prefix;
+};
+
+// SI Brochure (BIPM, 9th edition), table 7 prefixes used by the format; units of table 4 plus
+// the trade's Vrms/Arms and A²s. `deg` and `%` take no prefix.
+constexpr double kDegree = std::numbers::pi / 180.0;
+const std::array<UnitEntry, 20> kUnits{{
+    {"ohm", Dimension::resistance, 1.0, false, true},
+    {"\xCE\xA9", Dimension::resistance, 1.0, false, true},      // Ω U+03A9
+    {"\xE2\x84\xA6", Dimension::resistance, 1.0, false, true},  // Ω U+2126 OHM SIGN
+    {"S", Dimension::conductance, 1.0, false, true},
+    {"F", Dimension::capacitance, 1.0, false, true},
+    {"H", Dimension::inductance, 1.0, false, true},
+    {"V", Dimension::voltage, 1.0, false, true},
+    {"Vrms", Dimension::voltage, 1.0, true, true},
+    {"A", Dimension::current, 1.0, false, true},
+    {"Arms", Dimension::current, 1.0, true, true},
+    {"W", Dimension::power, 1.0, false, true},
+    {"J", Dimension::energy, 1.0, false, true},
+    {"A2s", Dimension::action, 1.0, false, true},
+    {"A\xC2\xB2s", Dimension::action, 1.0, false, true},  // A²s
+    {"s", Dimension::time, 1.0, false, true},
+    {"Hz", Dimension::frequency, 1.0, false, true},
+    {"deg", Dimension::angle, kDegree, false, false},
+    {"\xC2\xB0", Dimension::angle, kDegree, false, false},  // °
+    {"rad", Dimension::angle, 1.0, false, true},
+    {"%", Dimension::percent, 1.0, false, false},
+}};
+
+struct PrefixEntry {
+  std::string_view text;
+  double multiplier;
+};
+
+const std::array<PrefixEntry, 11> kPrefixes{{
+    {"f", 1e-15}, {"p", 1e-12}, {"n", 1e-9}, {"u", 1e-6}, {"\xC2\xB5", 1e-6} /* µ U+00B5 */,
+    {"\xCE\xBC", 1e-6} /* μ U+03BC */, {"m", 1e-3}, {"k", 1e3}, {"M", 1e6}, {"G", 1e9}, {"T", 1e12},
+}};
+
+const UnitEntry* find_unit(std::string_view text) {
+  for (const auto& u : kUnits)
+    if (u.text == text) return &u;
+  return nullptr;
+}
+
+}  // namespace
+
+std::optional<UnitSuffix> parse_unit_suffix(std::string_view text) {
+  if (text.empty()) return UnitSuffix{};
+  if (const UnitEntry* u = find_unit(text)) return UnitSuffix{u->scale, u->dimension, u->rms};
+  for (const auto& p : kPrefixes) {
+    if (text.substr(0, p.text.size()) != p.text) continue;
+    std::string_view rest = text.substr(p.text.size());
+    if (rest.empty()) return UnitSuffix{p.multiplier, std::nullopt, false};
+    if (const UnitEntry* u = find_unit(rest); u && u->takes_prefix)
+      return UnitSuffix{p.multiplier * u->scale, u->dimension, u->rms};
+  }
+  return std::nullopt;
+}
+
+Quantity parse_quantity_argument(std::string_view text, Dimension expected, std::string_view option) {
+  std::string_view s = text;
+  while (!s.empty() && (s.front() == ' ' || s.front() == '\t')) s.remove_prefix(1);
+  while (!s.empty() && (s.back() == ' ' || s.back() == '\t')) s.remove_suffix(1);
+  std::string_view number = s;
+  bool negative = false;
+  if (!number.empty() && (number.front() == '+' || number.front() == '-')) {
+    negative = number.front() == '-';
+    number.remove_prefix(1);
+  }
+  double value = 0.0;
+  auto [end, ec] = std::from_chars(number.data(), number.data() + number.size(), value, std::chars_format::general);
+  if (ec != std::errc() || end == number.data()) {
+    throw argument_error(option, fmt::format("expected {}, found '{}'", dimension_noun(expected), text));
+  }
+  std::string_view suffix(end, static_cast<std::size_t>(number.data() + number.size() - end));
+  while (!suffix.empty() && suffix.front() == ' ') suffix.remove_prefix(1);
+  auto unit = parse_unit_suffix(suffix);
+  if (!unit) throw argument_error(option, fmt::format("unknown unit '{}' in '{}'", suffix, text));
+  Dimension dim = unit->dimension.value_or(expected);
+  if (dim != expected) {
+    throw argument_error(option, fmt::format("'{}' is {}, but {} is needed here", text, dimension_noun(dim),
+                                             dimension_noun(expected)));
+  }
+  double scale = unit->multiplier;
+  // A bare angle is in degrees, as it is in the file format.
+  if (expected == Dimension::angle && !unit->dimension) scale *= kDegree;
+  double v = (negative ? -value : value) * scale;
+  if (!std::isfinite(v)) throw argument_error(option, fmt::format("'{}' is out of range", text));
+  return Quantity{v, dim, unit->rms};
+}
+
+std::string format_si(double value, std::string_view unit, int digits) {
+  if (std::isnan(value)) return "undefined";
+  if (std::isinf(value)) return fmt::format("{}∞{}{}", value < 0 ? "-" : "", unit.empty() ? "" : " ", unit);
+  digits = std::max(1, digits);
+  auto trim = [](std::string s) {
+    if (s.find('.') != std::string::npos && s.find('e') == std::string::npos) {
+      while (!s.empty() && s.back() == '0') s.pop_back();
+      if (!s.empty() && s.back() == '.') s.pop_back();
+    }
+    return s;
+  };
+  auto join = [&](std::string number, std::string_view prefix) {
+    if (unit.empty() && prefix.empty()) return number;
+    if (unit == "°" || unit == "%") return number + std::string(unit);
+    return fmt::format("{} {}{}", number, prefix, unit);
+  };
+  bool prefixable = !(unit.empty() || unit == "°" || unit == "%");
+  if (value == 0.0) return join("0", "");
+  if (!prefixable) {
+    double mag = std::fabs(value);
+    if (mag >= 1e-3 && mag < 1e9) {
+      int exponent = static_cast<int>(std::floor(std::log10(mag)));
+      int decimals = std::max(0, digits - 1 - exponent);
+      return join(trim(fmt::format("{:.{}f}", value, decimals)), "");
+    }
+    return join(fmt::format("{:.{}g}", value, digits), "");
+  }
+  static constexpr std::array<std::string_view, 11> kNames{"f", "p", "n", "µ", "m", "", "k", "M", "G", "T", "P"};
+  double mag = std::fabs(value);
+  // Round first, so that 999.96 µs becomes 1 ms rather than 1000 µs.
+  double rounded = std::stod(fmt::format("{:.{}e}", mag, digits - 1));
+  int exp3 = static_cast<int>(std::floor(std::log10(rounded) / 3.0));
+  if (exp3 < -5 || exp3 > 5) return join(fmt::format("{:.{}g}", value, digits), "");
+  double mantissa = rounded / std::pow(10.0, 3 * exp3);
+  int int_digits = mantissa >= 100 ? 3 : mantissa >= 10 ? 2 : 1;
+  int decimals = std::max(0, digits - int_digits);
+  std::string number = trim(fmt::format("{:.{}f}", mantissa, decimals));
+  if (value < 0) number = "-" + number;
+  return join(number, kNames[static_cast<std::size_t>(exp3 + 5)]);
+}
+
+std::string format_exact(double value) {
+  if (!std::isfinite(value)) return std::isnan(value) ? "nan" : (value > 0 ? "inf" : "-inf");
+  std::array<char, 32> buf{};
+  auto [end, ec] = std::to_chars(buf.data(), buf.data() + buf.size(), value);
+  (void)ec;
+  return std::string(buf.data(), end);
+}
+
+}  // namespace netfold
