@@ -1,0 +1,153 @@
+#pragma once
+/// \file mna.hpp
+/// Stage 2 of the pipeline: the modified nodal analysis (MNA) equations of the circuit in
+/// one switch configuration,
+///
+///     G · x = B · u
+///
+/// x: unknowns — node voltages (V, the reference and pinned nodes excluded) then branch
+///    currents (A) of the elements that need one (voltage sources, vcvs, ccvs, ideal closed
+///    switches, the capacitor port, and elements whose current another element senses);
+/// u: inputs — u[0] is the storage element's state (capacitor voltage in V or inductor
+///    current in A), u[1 + k] the present value of the k-th independent source;
+/// G: the nodal matrix (S and dimensionless entries); B: how each input enters.
+///
+/// The storage element is a port: a capacitor becomes a voltage source holding u[0], an
+/// inductor a current source driving u[0]. Within one configuration the network is
+/// resistive, so every voltage and current is an exact linear function of u.
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include <Eigen/Dense>
+#include <Eigen/SparseCore>
+
+#include "netfold/netlist.hpp"
+
+namespace netfold {
+
+/// Which switches are closed: one flag per switch, in the order of Circuit::elements().
+struct SwitchPositions {
+  std::vector<bool> closed;
+  bool operator==(const SwitchPositions& other) const { return closed == other.closed; }
+};
+
+/// The switch positions before t = 0 (each switch opposite to its first event).
+SwitchPositions positions_before_zero(const Circuit& circuit);
+
+/// The independent sources, in element order; input u[1 + k] is sources[k]'s value.
+std::vector<ElementId> independent_sources(const Circuit& circuit);
+
+/// How the storage element enters the equations.
+enum class PortMode : std::uint8_t {
+  port,  ///< as a source holding the state (the normal case)
+  /// An inductor whose loop is open and whose current is therefore held at 0: its voltage
+  /// L·di/dt is 0 too, so it becomes a 0 V branch (which also gives the isolated side a
+  /// defined voltage); its current comes out of KCL as 0.
+  held_at_zero,
+};
+
+/// Options of build_nodal_system.
+struct BuildOptions {
+  PortMode mode = PortMode::port;
+  /// An extra ideal voltage source between two nodes (first = +), driven by an extra last
+  /// input; used to find the Thevenin equivalent at any pair of nodes.
+  std::optional<std::pair<NodeId, NodeId>> test_port;
+};
+
+/// A linear function of the unknowns and the inputs: y = Σ c_i·x_i + Σ d_j·u_j.
+struct LinearForm {
+  std::vector<std::pair<std::uint32_t, double>> unknowns;  ///< (index into x, coefficient)
+  std::vector<std::pair<std::uint32_t, double>> inputs;    ///< (index into u, coefficient)
+  /// False when the quantity has no defined value in this configuration (a floating node).
+  bool defined = true;
+};
+
+/// Something structurally wrong with the network in one configuration, found before any
+/// factorization. The engine turns it into a message in circuit terms.
+struct TopologyProblem {
+  enum class Kind : std::uint8_t {
+    voltage_loop,      ///< a loop of ideal voltage sources / vcvs / closed ideal switches
+    test_port_loop,    ///< the test port is in such a loop: the port is shorted (R_th = 0)
+    capacitor_loop,    ///< the capacitor port is in such a loop: R_th = 0 (impulsive)
+    current_cut_set,   ///< current sources are the only connection of a floating sub-network
+    inductor_open,     ///< the inductor is the only connection: its current is forced to 0
+  };
+  Kind kind = Kind::voltage_loop;
+  std::vector<ElementId> elements;  ///< the loop, or the cut-set
+  std::vector<NodeId> nodes;        ///< the floating sub-network (cut-sets)
+};
+
+/// The MNA system of one configuration.
+class NodalSystem {
+ public:
+  /// Number of unknowns (rows of G).
+  std::uint32_t unknown_count() const { return static_cast<std::uint32_t>(labels_.size()); }
+  /// Number of inputs (columns of B): 1 + number of independent sources.
+  std::uint32_t input_count() const { return input_count_; }
+  /// The nodal matrix G, column-major compressed.
+  const Eigen::SparseMatrix<double>& matrix() const { return g_; }
+  /// The input matrix B.
+  const Eigen::SparseMatrix<double>& inputs() const { return b_; }
+  /// A readable name of unknown i: "v(a)" or "i(K1)".
+  const std::string& label(std::uint32_t i) const { return labels_[i]; }
+  /// Structural problems found while building (empty for a well-posed network).
+  const std::vector<TopologyProblem>& problems() const { return problems_; }
+  /// True when `node` belongs to a sub-network with no path to the reference.
+  bool node_floating(NodeId node) const { return floating_[node]; }
+  /// Index of the floating sub-network a node belongs to (0 = the reference's).
+  std::uint32_t component_of(NodeId node) const { return component_[node]; }
+
+  /// v(node) against the reference.
+  LinearForm node_voltage(NodeId node) const;
+  /// v(pos) − v(neg) of element `id`.
+  LinearForm element_voltage(ElementId id) const;
+  /// Current through element `id` from its first node to its second.
+  LinearForm element_current(ElementId id) const;
+  /// The storage element's port quantity: its current (capacitor) or voltage (inductor).
+  LinearForm port_quantity() const;
+  /// Current through the test port from its first node to its second (see BuildOptions).
+  LinearForm test_port_current() const;
+  /// Index of the test port's input in u (kNone without a test port).
+  std::uint32_t test_port_input() const { return test_input_; }
+  /// Right-hand side B·u.
+  Eigen::VectorXd right_hand_side(const Eigen::VectorXd& u) const { return b_ * u; }
+
+ private:
+  friend NodalSystem build_nodal_system(const Circuit&, const SwitchPositions&, const BuildOptions&);
+  const Circuit* circuit_ = nullptr;
+  ElementId storage_ = kNone;
+  PortMode port_mode_ = PortMode::port;
+  SwitchPositions positions_;
+  std::uint32_t input_count_ = 1;
+  std::uint32_t test_input_ = kNone;
+  std::uint32_t test_branch_ = kNone;
+  std::vector<std::uint32_t> node_unknown_;    ///< per node: index into x, or kNone (reference/pinned)
+  std::vector<std::uint32_t> branch_unknown_;  ///< per element: index into x, or kNone
+  std::vector<std::uint32_t> source_input_;    ///< per element: index into u, or kNone
+  std::vector<std::uint32_t> switch_index_;    ///< per element: index into positions_, or kNone
+  std::vector<bool> floating_;
+  std::vector<std::uint32_t> component_;
+  std::vector<std::string> labels_;
+  std::vector<TopologyProblem> problems_;
+  Eigen::SparseMatrix<double> g_;
+  Eigen::SparseMatrix<double> b_;
+
+  LinearForm sensed_current(ElementId id) const;
+  bool switch_closed(ElementId id) const;
+};
+
+/// Assembles G and B for `positions` (stamps through triplets), classifying the topology
+/// first: floating sub-networks are pinned (one node held at 0 V) so that G stays
+/// regular, and voltage loops / current cut-sets are recorded in problems().
+/// The circuit must outlive the returned system.
+NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& positions,
+                               const BuildOptions& options = {});
+
+/// Values of every input at time t: u[0] = state, u[1 + k] = source k's waveform at t.
+Eigen::VectorXd input_values(const Circuit& circuit, const std::vector<ElementId>& sources,
+                             double t, double state);
+
+}  // namespace netfold

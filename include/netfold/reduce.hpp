@@ -1,0 +1,78 @@
+#pragma once
+/// \file reduce.hpp
+/// Stage 3 of the pipeline: each switch configuration's MNA system factored once and solved
+/// for every input at once, X = G⁻¹·B, so that any voltage or current of that configuration
+/// is an exact linear function y = Σ_j c_j·u_j of the state u_0 and the sources u_1…; and
+/// from it the Thevenin and Norton equivalent that the storage element (or any port) sees.
+///
+/// The Thevenin resistance comes from the state itself used as a test source: for a
+/// capacitor, i_C = c_0·v_C + Σ c_j·u_j, so R_th = −1/c_0 and v_oc = −Σ c_j·u_j / c_0; for an
+/// inductor, v_L = c_0·i_L + Σ c_j·u_j, so R_th = −c_0 and v_oc = Σ c_j·u_j. Controlled
+/// sources are therefore handled exactly, with no series/parallel shortcuts.
+
+#include <memory>
+#include <optional>
+#include <vector>
+
+#include "netfold/mna.hpp"
+
+namespace netfold {
+
+/// One configuration, solved for every input.
+class ReducedNetwork {
+ public:
+  ReducedNetwork(const Circuit& circuit, const SwitchPositions& positions, const BuildOptions& options = {});
+  const NodalSystem& system() const { return system_; }
+  /// c such that the form's value is Σ_j c_j·u_j, one entry per input.
+  std::vector<double> coefficients(const LinearForm& form) const;
+  /// Reciprocal condition estimate of the equilibrated nodal matrix (0 = singular).
+  double rcond() const { return rcond_; }
+  /// Factorization used ("dense LU" or "KLU").
+  const char* solver_name() const { return solver_name_; }
+  /// Unknowns that take part in a near-null vector of G (empty unless singular and small).
+  const std::vector<std::uint32_t>& singular_unknowns() const { return singular_unknowns_; }
+
+ private:
+  NodalSystem system_;
+  Eigen::MatrixXd response_;  // X = G⁻¹·B: unknowns × inputs
+  double rcond_ = 1.0;
+  const char* solver_name_ = "dense LU";
+  std::vector<std::uint32_t> singular_unknowns_;
+};
+
+/// Below this reciprocal condition estimate the equations are treated as singular.
+inline constexpr double kSingularRcond = 1e-14;
+
+/// A Thevenin/Norton equivalent: v_oc and i_sc as linear combinations of the inputs
+/// (entry 0, the state, is 0 for the storage element's own equivalent).
+struct Equivalent {
+  double rth = 0.0;               ///< ohm; kInfinity (open) and 0 (short) are allowed
+  std::vector<double> voc;        ///< v_oc = Σ voc[j]·u_j (V), empty when R_th = 0 and undefined
+  std::vector<double> isc;        ///< i_sc = Σ isc[j]·u_j (A), empty when R_th = ∞ and undefined
+  /// For the storage element: the state-equation coefficient a in dx/dt = a·x + …, 1/s.
+  double rate = 0.0;
+};
+
+/// The equivalent the storage element sees in `network`; `port` is the storage element.
+/// Capacitor: C·dv/dt = (v_oc − v)/R_th; inductor: L·di/dt = v_oc − R_th·i.
+Equivalent storage_equivalent(const Circuit& circuit, const ReducedNetwork& network, ElementId storage);
+
+/// Caches ReducedNetworks by configuration, so that repeated solves (sweeps) factor each
+/// configuration once. Not thread-safe; one per thread.
+class NetworkCache {
+ public:
+  explicit NetworkCache(const Circuit& circuit) : circuit_(&circuit) {}
+  const ReducedNetwork& get(const SwitchPositions& positions, PortMode mode = PortMode::port);
+  const Circuit& circuit() const { return *circuit_; }
+
+ private:
+  const Circuit* circuit_;
+  struct Entry {
+    SwitchPositions positions;
+    PortMode mode;
+    std::unique_ptr<ReducedNetwork> network;
+  };
+  std::vector<Entry> entries_;
+};
+
+}  // namespace netfold

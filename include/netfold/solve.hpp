@@ -1,0 +1,165 @@
+#pragma once
+/// \file solve.hpp
+/// The engine's entry point: parse → build equations → reduce → closed form, for a whole
+/// window of switching events.
+///
+/// Example:
+/// \code
+///   netfold::Circuit c = netfold::parse_netlist_file("netlists/valve_coil.nf");
+///   netfold::Solution s = netfold::solve(c);
+///   double i = s.value(c.watches()[0], 0.010);   // coil current at 10 ms, A
+///   // s.segments()[0].tau == 0.1200 / 18.0  (6.667 ms)
+/// \endcode
+
+#include <memory>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "netfold/closed_form.hpp"
+#include "netfold/netlist.hpp"
+#include "netfold/reduce.hpp"
+
+namespace netfold {
+
+/// Changes to the circuit as declared, for sweeps and what-if runs.
+struct SolveOptions {
+  /// A source's phase: its first sinusoid's phase becomes this (rad); its other sinusoids
+  /// shift by the same angle.
+  std::optional<std::pair<ElementId, double>> source_phase;
+  /// The storage element's state at t = 0− (V or A), replacing `initial` or the steady state.
+  std::optional<double> initial_state;
+  /// A switch's first `closes` event moves to this time (s); its later events keep theirs.
+  std::optional<std::pair<ElementId, double>> first_closes;
+  /// Use this window instead of the circuit's (or the default one).
+  std::optional<Window> window;
+  /// Test-only hook: multiplies every segment's time constant, to prove the numerical
+  /// cross-check catches a wrong closed form. Never set outside tests.
+  double testing_tau_scale = 1.0;
+};
+
+/// Where the state at t = 0− came from.
+enum class InitialStateSource : std::uint8_t {
+  attribute,     ///< the storage element's `initial`
+  option,        ///< SolveOptions::initial_state (a sweep)
+  steady_state,  ///< the steady state of the network before t = 0
+  undetermined,  ///< no steady state (isolated, unstable, ramping): started from 0
+  none,          ///< no storage element
+};
+
+/// One interval between switching events.
+struct Segment {
+  int number = 1;                 ///< from 1, in time order
+  double from = 0.0, to = 0.0;    ///< s
+  SwitchPositions positions;
+  std::vector<std::string> changes;  ///< what happens at `from`: "K1 closes", "supply steps"
+  PortMode mode = PortMode::port;
+  /// The equivalent the storage element sees (rth, voc, isc as input combinations).
+  Equivalent equivalent;
+  Drive voc;                      ///< open-circuit voltage of this segment: DC + phasors (V)
+  Drive isc;                      ///< short-circuit current (A)
+  bool voc_defined = true;        ///< false when R_th = ∞ and v_oc is undefined
+  bool isc_defined = true;        ///< false when R_th = 0
+  double tau = kInfinity;         ///< s: −1/a; kInfinity when a = 0; negative when unstable
+  double rate = 0.0;              ///< a, 1/s
+  double state_start = 0.0;       ///< x(from)
+  Wave state;                     ///< the closed-form state over [from, to]
+  double rcond = 1.0;             ///< condition estimate of the segment's equations
+  const char* solver = "dense LU";
+  /// True when τ is negative (a controlled source makes the response grow).
+  bool unstable() const { return rate > 0.0; }
+};
+
+/// The exact solution over the window; any observable can be evaluated at any time.
+/// Keeps a reference to the circuit, which must outlive it.
+class Solution {
+ public:
+  const Circuit& circuit() const { return *circuit_; }
+  /// The storage element, or kNone for a purely resistive circuit.
+  ElementId storage() const { return storage_; }
+  const std::vector<Segment>& segments() const { return segments_; }
+  /// The analysis span (declared, or the default rule of the format).
+  const Window& window() const { return window_; }
+  bool window_is_default() const { return window_default_; }
+  /// CSV sample spacing.
+  double resolution() const { return resolution_; }
+  /// State at t = 0− and where it came from.
+  double initial_state() const { return initial_state_; }
+  InitialStateSource initial_source() const { return initial_source_; }
+  /// Why the initial state is undetermined (empty otherwise).
+  const std::string& initial_note() const { return initial_note_; }
+  /// Observables reported: the watch list, or the storage element's v and i.
+  const std::vector<Observable>& observables() const { return observables_; }
+  /// Notes and warnings for the report (cautions included), in order.
+  const std::vector<std::string>& warnings() const { return warnings_; }
+  /// The segment that holds t (an event time belongs to the segment it starts).
+  const Segment& segment_at(double t) const;
+  /// The closed form of an observable, one piece per segment. Throws InputError when the
+  /// observable is undefined in some segment (a floating node).
+  std::vector<Piece> pieces(const Observable& observable) const;
+  /// Value at time t (right-continuous at events).
+  double value(const Observable& observable, double t) const;
+  /// The independent sources, in input order.
+  const std::vector<ElementId>& sources() const { return sources_; }
+  /// The options the solution was computed with.
+  const SolveOptions& options() const { return options_; }
+  /// The reduced network of a segment (its coefficients give any quantity).
+  const ReducedNetwork& network(const Segment& segment) const;
+  /// Drive of an input combination c (c[j] per input; c[0] ignored) in a segment.
+  Drive drive_of(const std::vector<double>& c, const Segment& segment) const;
+
+ private:
+  friend Solution solve(const Circuit&, const SolveOptions&, std::shared_ptr<NetworkCache>);
+  const Circuit* circuit_ = nullptr;
+  std::shared_ptr<NetworkCache> cache_;
+  SolveOptions options_;
+  ElementId storage_ = kNone;
+  std::vector<ElementId> sources_;
+  std::vector<Segment> segments_;
+  Window window_;
+  bool window_default_ = true;
+  double resolution_ = 0.0;
+  double initial_state_ = 0.0;
+  InitialStateSource initial_source_ = InitialStateSource::none;
+  std::string initial_note_;
+  std::vector<Observable> observables_;
+  std::vector<std::string> warnings_;
+
+  Wave observable_wave(const LinearForm& form, const Segment& segment) const;
+  LinearForm observable_form(const Observable& obs, const NodalSystem& sys, bool want_current) const;
+};
+
+/// Solves the circuit over its window. Throws InputError for a circuit the method cannot
+/// solve (two storage elements, an impulsive configuration, a singular network), naming the
+/// element at fault and the fix. `cache` may be shared between solves of the same circuit.
+Solution solve(const Circuit& circuit, const SolveOptions& options = {},
+               std::shared_ptr<NetworkCache> cache = nullptr);
+
+/// Key figures of one observable over the window.
+struct Figures {
+  double peak = 0.0, t_peak = 0.0;  ///< largest |y| and when
+  double max = 0.0, t_max = 0.0;
+  double min = 0.0, t_min = 0.0;
+  double final_value = 0.0;         ///< y at the window's end
+  std::optional<Drive> steady;      ///< steady state of the last segment (none when it has none)
+  std::optional<double> amplitude;  ///< of the fundamental (lowest frequency); none for powers
+  std::optional<double> phase;      ///< rad, against a cosine; none for powers
+  std::optional<double> dc;         ///< DC part of the steady state; none for powers
+  std::optional<double> settling_time;  ///< s after the last event; none when it never settles
+};
+
+/// Figures of an observable, from its closed form.
+Figures compute_figures(const Solution& solution, const Observable& observable);
+
+/// Energy absorbed by element `id` over the window, ∫v·i dt (J), exact.
+double element_energy(const Solution& solution, ElementId id);
+/// ∫i² dt through element `id` over the window (A²s), exact.
+double element_i2t(const Solution& solution, ElementId id);
+/// Mean power of element `id` over one fundamental period of the steady state, or over
+/// the window where there is no sinusoid (W).
+double element_mean_power(const Solution& solution, ElementId id);
+
+/// The caution printed on every report of a circuit above 50 V AC (rms) or 120 V DC.
+extern const char* const kHazardCaution;
+
+}  // namespace netfold

@@ -1,0 +1,347 @@
+#include "netfold/closed_form.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <numbers>
+
+namespace netfold {
+
+namespace {
+
+constexpr double kTwoPi = 2.0 * std::numbers::pi;
+
+double phi(double a, double s) { return a == 0.0 ? s : std::expm1(a * s) / a; }
+
+double phasor_value(const Phasor& p, double t) {
+  double wt = kTwoPi * p.frequency * t;
+  return p.value.real() * std::cos(wt) - p.value.imag() * std::sin(wt);
+}
+
+double phasor_derivative(const Phasor& p, double t) {
+  double w = kTwoPi * p.frequency;
+  double wt = w * t;
+  return -w * (p.value.real() * std::sin(wt) + p.value.imag() * std::cos(wt));
+}
+
+void merge_phasor(std::vector<Phasor>& phasors, double frequency, std::complex<double> value) {
+  auto it = std::lower_bound(phasors.begin(), phasors.end(), frequency,
+                             [](const Phasor& p, double f) { return p.frequency < f; });
+  if (it != phasors.end() && it->frequency == frequency) {
+    it->value += value;
+  } else {
+    phasors.insert(it, Phasor{frequency, value});
+  }
+}
+
+}  // namespace
+
+double Drive::value(double t) const {
+  double v = dc;
+  for (const auto& p : phasors) v += phasor_value(p, t);
+  return v;
+}
+
+void Drive::add_phasor(double frequency, std::complex<double> value) { merge_phasor(phasors, frequency, value); }
+
+void Drive::add(const Drive& other, double coef) {
+  dc += coef * other.dc;
+  for (const auto& p : other.phasors) merge_phasor(phasors, p.frequency, coef * p.value);
+}
+
+double Wave::value(double t) const {
+  double s = t - t0;
+  double v = offset;
+  if (drift != 0.0) v += drift * phi(a, s);
+  if (transient != 0.0) v += transient * std::exp(a * s);
+  for (const auto& p : phasors) v += phasor_value(p, t);
+  return v;
+}
+
+double Wave::derivative(double t) const {
+  double s = t - t0;
+  double e = std::exp(a * s);
+  double d = drift * e + transient * a * e;
+  for (const auto& p : phasors) d += phasor_derivative(p, t);
+  return d;
+}
+
+std::optional<Drive> Wave::steady_state() const {
+  Drive d;
+  d.phasors = phasors;
+  if (a < 0.0) {
+    d.dc = offset - drift / a;
+  } else if (drift == 0.0 && (a == 0.0 || transient == 0.0)) {
+    d.dc = offset + (a == 0.0 ? transient : 0.0);
+  } else {
+    return std::nullopt;
+  }
+  return d;
+}
+
+Wave state_wave(double t0, double t1, double a, double x0, const Drive& forcing) {
+  Wave w;
+  w.t0 = t0;
+  w.t1 = t1;
+  w.a = a;
+  w.drift = forcing.dc;
+  w.transient = x0;
+  for (const auto& f : forcing.phasors) {
+    // Particular solution of dx/dt = a·x + Re(F·e^{jωt}): Re(F/(jω − a)·e^{jωt}).
+    double omega = kTwoPi * f.frequency;
+    std::complex<double> p = f.value / std::complex<double>(-a, omega);
+    w.phasors.push_back({f.frequency, p});
+    w.transient -= phasor_value({f.frequency, p}, t0);
+  }
+  return w;
+}
+
+Wave affine_wave(const Wave& x, double gain, const Drive& direct) {
+  Wave w;
+  w.t0 = x.t0;
+  w.t1 = x.t1;
+  w.a = x.a;
+  w.offset = gain * x.offset + direct.dc;
+  w.drift = gain * x.drift;
+  w.transient = gain * x.transient;
+  if (gain != 0.0)
+    for (const auto& p : x.phasors) merge_phasor(w.phasors, p.frequency, gain * p.value);
+  for (const auto& p : direct.phasors) merge_phasor(w.phasors, p.frequency, p.value);
+  std::erase_if(w.phasors, [](const Phasor& p) { return p.value == std::complex<double>(0.0, 0.0); });
+  return w;
+}
+
+Wave constant_wave(double t0, double t1, double value) {
+  Wave w;
+  w.t0 = t0;
+  w.t1 = t1;
+  w.offset = value;
+  return w;
+}
+
+namespace {
+
+// Brent's method (R. P. Brent, Algorithms for Minimization without Derivatives, 1973, ch. 4)
+// for a root of `f` in [a, b] with f(a)·f(b) ≤ 0.
+template <typename F>
+double brent_root(F&& f, double a, double b, double fa, double fb, double tol) {
+  if (fa == 0.0) return a;
+  if (fb == 0.0) return b;
+  double c = a, fc = fa, d = b - a, e = d;
+  for (int iter = 0; iter < 200; ++iter) {
+    if ((fb > 0) == (fc > 0)) {
+      c = a;
+      fc = fa;
+      d = e = b - a;
+    }
+    if (std::fabs(fc) < std::fabs(fb)) {
+      a = b;
+      b = c;
+      c = a;
+      fa = fb;
+      fb = fc;
+      fc = fa;
+    }
+    double tol1 = 2.0 * std::numeric_limits<double>::epsilon() * std::fabs(b) + 0.5 * tol;
+    double m = 0.5 * (c - b);
+    if (std::fabs(m) <= tol1 || fb == 0.0) return b;
+    if (std::fabs(e) >= tol1 && std::fabs(fa) > std::fabs(fb)) {
+      double s = fb / fa, p, q;
+      if (a == c) {
+        p = 2.0 * m * s;
+        q = 1.0 - s;
+      } else {
+        double qq = fa / fc, r = fb / fc;
+        p = s * (2.0 * m * qq * (qq - r) - (b - a) * (r - 1.0));
+        q = (qq - 1.0) * (r - 1.0) * (s - 1.0);
+      }
+      if (p > 0) q = -q;
+      p = std::fabs(p);
+      if (2.0 * p < std::min(3.0 * m * q - std::fabs(tol1 * q), std::fabs(e * q))) {
+        e = d;
+        d = p / q;
+      } else {
+        d = m;
+        e = m;
+      }
+    } else {
+      d = m;
+      e = m;
+    }
+    a = b;
+    fa = fb;
+    b += std::fabs(d) > tol1 ? d : (m > 0 ? tol1 : -tol1);
+    fb = f(b);
+  }
+  return b;
+}
+
+double fastest_frequency(const Wave& w) {
+  double f = 0.0;
+  for (const auto& p : w.phasors) f = std::max(f, p.frequency);
+  return f;
+}
+
+// The grid must have several points per period of the fastest sinusoid so that every
+// local extreme falls between two samples whose derivatives differ in sign; the cap keeps
+// very long windows bounded (about a second of work).
+constexpr double kPointsPerPeriod = 24.0;
+constexpr std::size_t kMinPoints = 64;
+constexpr std::size_t kMaxPoints = 2'000'000;
+
+}  // namespace
+
+Extremes find_extremes(const Piece& piece, double from, double to) {
+  Extremes ex;
+  double v0 = piece.value(from);
+  ex.max = ex.min = v0;
+  ex.t_max = ex.t_min = from;
+  auto consider = [&](double t, double v) {
+    if (v > ex.max) {
+      ex.max = v;
+      ex.t_max = t;
+    }
+    if (v < ex.min) {
+      ex.min = v;
+      ex.t_min = t;
+    }
+  };
+  consider(to, piece.value(to));
+  double span = to - from;
+  if (!(span > 0.0)) return ex;
+
+  double f_max = fastest_frequency(piece.f) + (piece.g ? fastest_frequency(*piece.g) : 0.0);
+  std::size_t n = kMinPoints;
+  if (f_max > 0.0) {
+    double wanted = std::ceil(span * f_max * kPointsPerPeriod);
+    n = static_cast<std::size_t>(std::clamp(wanted, static_cast<double>(kMinPoints), static_cast<double>(kMaxPoints)));
+  }
+  std::vector<double> ts;
+  ts.reserve(n + 300);
+  for (std::size_t i = 0; i <= n; ++i) ts.push_back(from + span * static_cast<double>(i) / static_cast<double>(n));
+  // Transients live near the segment start: cluster points over its first 30 time constants.
+  for (double a : {piece.f.a, piece.g ? piece.g->a : 0.0}) {
+    if (a >= 0.0) continue;
+    double tau = -1.0 / a;
+    if (tau >= span) continue;  // the uniform grid already resolves it
+    for (int k = 1; k <= 240; ++k) {
+      double t = std::max(from, piece.t0()) + tau * k / 8.0;
+      if (t >= to) break;
+      ts.push_back(t);
+    }
+  }
+  std::sort(ts.begin(), ts.end());
+  ts.erase(std::unique(ts.begin(), ts.end()), ts.end());
+
+  const double tol = 1e-12 * std::max(span, std::fabs(to));
+  auto deriv = [&](double t) { return piece.derivative(t); };
+  double t_prev = ts.front(), d_prev = deriv(t_prev);
+  for (std::size_t i = 1; i < ts.size(); ++i) {
+    double t = ts[i], d = deriv(t);
+    consider(t, piece.value(t));
+    if ((d_prev > 0.0 && d <= 0.0) || (d_prev < 0.0 && d >= 0.0)) {
+      double root = brent_root(deriv, t_prev, t, d_prev, d, tol);
+      consider(root, piece.value(root));
+    }
+    t_prev = t;
+    d_prev = d;
+  }
+  return ex;
+}
+
+namespace {
+
+// A term c·s^k·e^{z·s} of a complex expansion in s = t − t0; the real signal is the real part.
+struct Term {
+  std::complex<double> c;
+  std::complex<double> z;
+  int k = 0;
+};
+
+// Rate·span below which φ(a, s) is expanded as a polynomial, so that the two halves of
+// (e^{as} − 1)/a do not cancel in integrals.
+constexpr double kSmallRate = 1e-2;
+constexpr int kPhiTerms = 12;
+
+std::vector<Term> terms_of(const Wave& w) {
+  std::vector<Term> terms;
+  if (w.offset != 0.0) terms.push_back({w.offset, 0.0, 0});
+  if (w.drift != 0.0) {
+    double span = w.t1 - w.t0;
+    if (w.a == 0.0 || std::fabs(w.a * span) < kSmallRate) {
+      // φ(a, s) = Σ_{n≥1} a^{n−1}·s^n/n!
+      double coef = w.drift;
+      for (int n = 1; n <= kPhiTerms; ++n) {
+        coef /= n;
+        terms.push_back({coef, 0.0, n});
+        coef *= w.a;
+        if (coef == 0.0) break;
+      }
+    } else {
+      terms.push_back({w.drift / w.a, w.a, 0});
+      terms.push_back({-w.drift / w.a, 0.0, 0});
+    }
+  }
+  if (w.transient != 0.0) terms.push_back({w.transient, w.a, 0});
+  for (const auto& p : w.phasors) {
+    double omega = kTwoPi * p.frequency;
+    terms.push_back({p.value * std::polar(1.0, omega * w.t0), {0.0, omega}, 0});
+  }
+  return terms;
+}
+
+// ∫_0^L s^k·e^{z·s} ds.
+std::complex<double> moment(int k, std::complex<double> z, double L) {
+  std::complex<double> zl = z * L;
+  double lk1 = std::pow(L, k + 1);
+  if (std::abs(zl) < 1.0) {
+    // Series: L^{k+1}·Σ_n (zL)^n / (n!·(n+k+1)).
+    std::complex<double> sum = 0.0, term = 1.0;
+    for (int n = 0; n < 80; ++n) {
+      if (n > 0) term *= zl / static_cast<double>(n);
+      std::complex<double> add = term / static_cast<double>(n + k + 1);
+      sum += add;
+      if (std::abs(add) < 1e-18 * std::abs(sum)) break;
+    }
+    return lk1 * sum;
+  }
+  // I_0 = (e^{zL} − 1)/z; I_k = (L^k·e^{zL} − k·I_{k−1})/z.
+  std::complex<double> ezl = std::exp(zl);
+  std::complex<double> ik = (ezl - 1.0) / z;
+  double lk = 1.0;
+  for (int j = 1; j <= k; ++j) {
+    lk *= L;
+    ik = (lk * ezl - static_cast<double>(j) * ik) / z;
+  }
+  return ik;
+}
+
+std::complex<double> term_integral(const Term& t, double s0, double s1) {
+  return t.c * (moment(t.k, t.z, s1) - moment(t.k, t.z, s0));
+}
+
+}  // namespace
+
+double integral_of_product(const Wave& f, const Wave& g, double from, double to) {
+  if (!(to > from)) return 0.0;
+  auto tf = terms_of(f), tg = terms_of(g);
+  double s0 = from - f.t0, s1 = to - f.t0;
+  // Re(A)·Re(B) = ½·Re(A·B) + ½·Re(A·conj(B)).
+  double sum = 0.0;
+  for (const auto& a : tf)
+    for (const auto& b : tg) {
+      Term ab{a.c * b.c, a.z + b.z, a.k + b.k};
+      Term abc{a.c * std::conj(b.c), a.z + std::conj(b.z), a.k + b.k};
+      sum += 0.5 * (term_integral(ab, s0, s1).real() + term_integral(abc, s0, s1).real());
+    }
+  return sum;
+}
+
+double integral(const Wave& f, double from, double to) {
+  if (!(to > from)) return 0.0;
+  double s0 = from - f.t0, s1 = to - f.t0;
+  double sum = 0.0;
+  for (const auto& a : terms_of(f)) sum += term_integral(a, s0, s1).real();
+  return sum;
+}
+
+}  // namespace netfold

@@ -1,0 +1,415 @@
+#include "netfold/mna.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <deque>
+#include <numeric>
+
+namespace netfold {
+
+namespace {
+
+class DisjointSets {
+ public:
+  explicit DisjointSets(std::size_t n) : parent_(n) { std::iota(parent_.begin(), parent_.end(), 0u); }
+  std::uint32_t find(std::uint32_t x) {
+    while (parent_[x] != x) {
+      parent_[x] = parent_[parent_[x]];
+      x = parent_[x];
+    }
+    return x;
+  }
+  /// Returns false when a and b were already joined.
+  bool join(std::uint32_t a, std::uint32_t b) {
+    a = find(a);
+    b = find(b);
+    if (a == b) return false;
+    parent_[std::max(a, b)] = std::min(a, b);
+    return true;
+  }
+
+ private:
+  std::vector<std::uint32_t> parent_;
+};
+
+/// How an element connects its two nodes in one configuration.
+enum class Edge : std::uint8_t {
+  none,        ///< open: no connection
+  resistive,   ///< a finite, non-zero impedance (defines a voltage relation)
+  stiff,       ///< an ideal voltage branch: fixes v(pos) − v(neg) with zero impedance
+  soft,        ///< a voltage branch that may carry impedance through its control (ccvs)
+  current,     ///< fixes the current, not the voltage (current sources, vccs, cccs, inductor port)
+};
+
+Edge edge_of(const Element& e, bool is_port, PortMode mode, bool closed) {
+  switch (e.kind) {
+    case ElementKind::resistor: return Edge::resistive;
+    case ElementKind::capacitor: return is_port ? Edge::stiff : Edge::none;
+    case ElementKind::inductor:
+      if (!is_port) return Edge::none;
+      return mode == PortMode::port ? Edge::current : Edge::stiff;
+    case ElementKind::voltage_source: return Edge::stiff;
+    case ElementKind::vcvs: return Edge::stiff;
+    case ElementKind::ccvs: return Edge::soft;
+    case ElementKind::current_source:
+    case ElementKind::vccs:
+    case ElementKind::cccs: return Edge::current;
+    case ElementKind::switch_:
+      if (closed) return e.r_on > 0.0 ? Edge::resistive : Edge::stiff;
+      return std::isfinite(e.r_off) ? Edge::resistive : Edge::none;
+  }
+  return Edge::none;
+}
+
+}  // namespace
+
+SwitchPositions positions_before_zero(const Circuit& circuit) {
+  SwitchPositions p;
+  for (const auto& e : circuit.elements())
+    if (e.kind == ElementKind::switch_) p.closed.push_back(e.closed_before_zero());
+  return p;
+}
+
+std::vector<ElementId> independent_sources(const Circuit& circuit) {
+  std::vector<ElementId> ids;
+  for (ElementId i = 0; i < circuit.elements().size(); ++i)
+    if (is_independent_source(circuit.elements()[i].kind)) ids.push_back(i);
+  return ids;
+}
+
+Eigen::VectorXd input_values(const Circuit& circuit, const std::vector<ElementId>& sources, double t,
+                             double state) {
+  Eigen::VectorXd u(static_cast<Eigen::Index>(1 + sources.size()));
+  u[0] = state;
+  for (std::size_t k = 0; k < sources.size(); ++k)
+    u[static_cast<Eigen::Index>(k + 1)] = circuit.elements()[sources[k]].waveform.value_at(t);
+  return u;
+}
+
+bool NodalSystem::switch_closed(ElementId id) const { return positions_.closed.at(switch_index_[id]); }
+
+NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& positions, const BuildOptions& options) {
+  const PortMode mode = options.mode;
+  NodalSystem sys;
+  sys.circuit_ = &circuit;
+  sys.port_mode_ = mode;
+  sys.positions_ = positions;
+  const auto& elements = circuit.elements();
+  const auto n_nodes = static_cast<std::uint32_t>(circuit.nodes().size());
+  const auto n_elem = static_cast<std::uint32_t>(elements.size());
+  auto storage = circuit.storage_elements();
+  sys.storage_ = storage.empty() ? kNone : storage.front();
+
+  sys.switch_index_.assign(n_elem, kNone);
+  sys.source_input_.assign(n_elem, kNone);
+  std::uint32_t n_switch = 0, n_input = 1;
+  for (ElementId i = 0; i < n_elem; ++i) {
+    if (elements[i].kind == ElementKind::switch_) sys.switch_index_[i] = n_switch++;
+    if (is_independent_source(elements[i].kind)) sys.source_input_[i] = n_input++;
+  }
+  if (options.test_port) sys.test_input_ = n_input++;
+  sys.input_count_ = n_input;
+
+  std::vector<Edge> edges(n_elem);
+  std::vector<bool> sensed(n_elem, false);
+  for (ElementId i = 0; i < n_elem; ++i) {
+    const Element& e = elements[i];
+    bool closed = e.kind == ElementKind::switch_ && positions.closed.at(sys.switch_index_[i]);
+    edges[i] = edge_of(e, i == sys.storage_, mode, closed);
+    if (e.sense_element != kNone) sensed[e.sense_element] = true;
+  }
+
+  // Topology first: which nodes the reference reaches through voltage-defining branches,
+  // and which ideal voltage branches close a loop among themselves.
+  DisjointSets reach(n_nodes), stiff(n_nodes);
+  std::vector<std::vector<std::pair<NodeId, ElementId>>> stiff_tree(n_nodes);
+  const ElementId test_port_id = n_elem;  // stands for the test port in loop lists
+  auto record_loop = [&](ElementId closing, NodeId from, NodeId to) {
+    // The loop: the closing branch plus the tree path between its ends.
+    TopologyProblem problem;
+    std::vector<std::pair<NodeId, ElementId>> came_from(n_nodes, {kNone, kNone});
+    std::deque<NodeId> queue{from};
+    came_from[from] = {from, kNone};
+    while (!queue.empty()) {
+      NodeId n = queue.front();
+      queue.pop_front();
+      if (n == to) break;
+      for (auto [next, via] : stiff_tree[n])
+        if (came_from[next].first == kNone) {
+          came_from[next] = {n, via};
+          queue.push_back(next);
+        }
+    }
+    problem.elements.push_back(closing);
+    for (NodeId n = to; n != from && came_from[n].first != kNone; n = came_from[n].first)
+      problem.elements.push_back(came_from[n].second);
+    auto has = [&](ElementId id) {
+      return std::find(problem.elements.begin(), problem.elements.end(), id) != problem.elements.end();
+    };
+    problem.kind = has(test_port_id)   ? TopologyProblem::Kind::test_port_loop
+                   : has(sys.storage_) && elements[sys.storage_].kind == ElementKind::capacitor
+                       ? TopologyProblem::Kind::capacitor_loop
+                       : TopologyProblem::Kind::voltage_loop;
+    std::erase(problem.elements, test_port_id);
+    sys.problems_.push_back(std::move(problem));
+  };
+  auto add_stiff = [&](ElementId id, NodeId p, NodeId q) {
+    if (stiff.join(p, q)) {
+      stiff_tree[p].push_back({q, id});
+      stiff_tree[q].push_back({p, id});
+    } else {
+      record_loop(id, p, q);
+    }
+  };
+  for (ElementId i = 0; i < n_elem; ++i) {
+    const Element& e = elements[i];
+    if (edges[i] == Edge::none || edges[i] == Edge::current) continue;
+    reach.join(e.pos, e.neg);
+    if (edges[i] == Edge::stiff) add_stiff(i, e.pos, e.neg);
+  }
+  if (options.test_port) {
+    reach.join(options.test_port->first, options.test_port->second);
+    add_stiff(test_port_id, options.test_port->first, options.test_port->second);
+  }
+
+  // Sub-networks the reference does not reach: each gets one node pinned at 0 V, which is
+  // exact as long as no current enters it (checked next; otherwise it is a problem).
+  const std::uint32_t ground_root = reach.find(circuit.ground());
+  sys.floating_.assign(n_nodes, false);
+  sys.component_.assign(n_nodes, 0);
+  std::vector<std::uint32_t> component_of_root(n_nodes, kNone);
+  std::vector<NodeId> pinned;
+  std::uint32_t n_components = 1;
+  for (NodeId n = 0; n < n_nodes; ++n) {
+    std::uint32_t root = reach.find(n);
+    if (root == ground_root) continue;
+    sys.floating_[n] = true;
+    if (component_of_root[root] == kNone) {
+      component_of_root[root] = n_components++;
+      pinned.push_back(n);
+    }
+    sys.component_[n] = component_of_root[root];
+  }
+  std::vector<std::vector<ElementId>> crossings(n_components);
+  for (ElementId i = 0; i < n_elem; ++i) {
+    if (edges[i] != Edge::current) continue;
+    std::uint32_t a = sys.component_[elements[i].pos], b = sys.component_[elements[i].neg];
+    if (a == b) continue;
+    if (a != 0) crossings[a].push_back(i);
+    if (b != 0) crossings[b].push_back(i);
+  }
+  for (std::uint32_t c = 1; c < n_components; ++c) {
+    if (crossings[c].empty()) continue;
+    TopologyProblem problem;
+    bool only_inductor = crossings[c].size() == 1 && crossings[c][0] == sys.storage_;
+    problem.kind = only_inductor ? TopologyProblem::Kind::inductor_open : TopologyProblem::Kind::current_cut_set;
+    problem.elements = crossings[c];
+    for (NodeId n = 0; n < n_nodes; ++n)
+      if (sys.component_[n] == c) problem.nodes.push_back(n);
+    sys.problems_.push_back(std::move(problem));
+  }
+
+  // Unknowns: node voltages, then branch currents.
+  sys.node_unknown_.assign(n_nodes, kNone);
+  std::vector<bool> is_pinned(n_nodes, false);
+  for (NodeId n : pinned) is_pinned[n] = true;
+  for (NodeId n = 0; n < n_nodes; ++n) {
+    if (n == circuit.ground() || is_pinned[n]) continue;
+    sys.node_unknown_[n] = static_cast<std::uint32_t>(sys.labels_.size());
+    sys.labels_.push_back("v(" + circuit.nodes()[n] + ")");
+  }
+  sys.branch_unknown_.assign(n_elem, kNone);
+  for (ElementId i = 0; i < n_elem; ++i) {
+    const Element& e = elements[i];
+    bool branch = false;
+    switch (edges[i]) {
+      case Edge::stiff:
+      case Edge::soft: branch = true; break;
+      case Edge::resistive: branch = sensed[i]; break;
+      case Edge::current: branch = sensed[i] && (e.kind == ElementKind::vccs || e.kind == ElementKind::cccs); break;
+      case Edge::none: break;
+    }
+    if (!branch) continue;
+    sys.branch_unknown_[i] = static_cast<std::uint32_t>(sys.labels_.size());
+    sys.labels_.push_back("i(" + e.name + ")");
+  }
+
+  if (options.test_port) {
+    sys.test_branch_ = static_cast<std::uint32_t>(sys.labels_.size());
+    sys.labels_.push_back("i(test port)");
+  }
+
+  // Stamps. KCL rows: the sum of currents leaving a node through its elements is zero.
+  const auto n_unknown = static_cast<Eigen::Index>(sys.labels_.size());
+  std::vector<Eigen::Triplet<double>> g, b;
+  g.reserve(static_cast<std::size_t>(4 * n_elem));
+  auto add_g = [&](std::uint32_t row, std::uint32_t col, double v) {
+    if (row != kNone && col != kNone) g.emplace_back(row, col, v);
+  };
+  auto add_b = [&](std::uint32_t row, std::uint32_t input, double v) {
+    if (row != kNone) b.emplace_back(row, input, v);
+  };
+  // Adds coef·form to row `row`, unknown parts to G and input parts (negated) to B.
+  auto add_form = [&](std::uint32_t row, const LinearForm& form, double coef) {
+    for (auto [x, c] : form.unknowns) add_g(row, x, coef * c);
+    for (auto [u, c] : form.inputs) add_b(row, u, -coef * c);
+  };
+  auto voltage_form = [&](NodeId p, NodeId q) {
+    LinearForm f;
+    if (sys.node_unknown_[p] != kNone) f.unknowns.push_back({sys.node_unknown_[p], 1.0});
+    if (sys.node_unknown_[q] != kNone) f.unknowns.push_back({sys.node_unknown_[q], -1.0});
+    return f;
+  };
+
+  for (ElementId i = 0; i < n_elem; ++i) {
+    const Element& e = elements[i];
+    const std::uint32_t rp = sys.node_unknown_[e.pos], rn = sys.node_unknown_[e.neg];
+    const std::uint32_t j = sys.branch_unknown_[i];
+    if (j != kNone) {
+      add_g(rp, j, 1.0);
+      add_g(rn, j, -1.0);
+    }
+    switch (edges[i]) {
+      case Edge::none: break;
+      case Edge::resistive: {
+        double r = e.kind == ElementKind::resistor ? e.value : (sys.switch_closed(i) ? e.r_on : e.r_off);
+        if (j == kNone) {
+          double gv = 1.0 / r;
+          add_g(rp, rp, gv);
+          add_g(rn, rn, gv);
+          add_g(rp, rn, -gv);
+          add_g(rn, rp, -gv);
+        } else {  // v(pos) − v(neg) − R·j = 0
+          add_form(j, voltage_form(e.pos, e.neg), 1.0);
+          add_g(j, j, -r);
+        }
+        break;
+      }
+      case Edge::stiff:
+      case Edge::soft: {
+        add_form(j, voltage_form(e.pos, e.neg), 1.0);
+        if (e.kind == ElementKind::voltage_source) add_b(j, sys.source_input_[i], 1.0);
+        if (e.kind == ElementKind::capacitor) add_b(j, 0, 1.0);
+        // An inductor held at zero current is a 0 V branch: nothing more to stamp.
+        if (e.kind == ElementKind::vcvs) add_form(j, voltage_form(e.sense_pos, e.sense_neg), -e.value);
+        if (e.kind == ElementKind::ccvs) add_form(j, sys.sensed_current(e.sense_element), -e.value);
+        break;
+      }
+      case Edge::current: {
+        LinearForm drive;
+        if (e.kind == ElementKind::current_source) drive.inputs.push_back({sys.source_input_[i], 1.0});
+        if (e.kind == ElementKind::inductor) drive.inputs.push_back({0, 1.0});
+        if (e.kind == ElementKind::vccs) {
+          drive = voltage_form(e.sense_pos, e.sense_neg);
+          for (auto& [x, c] : drive.unknowns) c *= e.value;
+        }
+        if (e.kind == ElementKind::cccs) {
+          drive = sys.sensed_current(e.sense_element);
+          for (auto& [x, c] : drive.unknowns) c *= e.value;
+          for (auto& [u, c] : drive.inputs) c *= e.value;
+        }
+        if (j == kNone) {
+          add_form(rp, drive, 1.0);
+          add_form(rn, drive, -1.0);
+        } else {  // j − drive = 0
+          add_g(j, j, 1.0);
+          add_form(j, drive, -1.0);
+        }
+        break;
+      }
+    }
+  }
+  if (options.test_port) {
+    auto [p, q] = *options.test_port;
+    const std::uint32_t j = sys.test_branch_;
+    add_g(sys.node_unknown_[p], j, 1.0);
+    add_g(sys.node_unknown_[q], j, -1.0);
+    add_form(j, voltage_form(p, q), 1.0);
+    add_b(j, sys.test_input_, 1.0);
+  }
+  sys.g_.resize(n_unknown, n_unknown);
+  sys.g_.setFromTriplets(g.begin(), g.end());
+  sys.b_.resize(n_unknown, n_input);
+  sys.b_.setFromTriplets(b.begin(), b.end());
+  return sys;
+}
+
+LinearForm NodalSystem::node_voltage(NodeId node) const {
+  LinearForm f;
+  f.defined = !floating_[node];
+  if (node_unknown_[node] != kNone) f.unknowns.push_back({node_unknown_[node], 1.0});
+  return f;
+}
+
+LinearForm NodalSystem::element_voltage(ElementId id) const {
+  const Element& e = circuit_->elements()[id];
+  LinearForm f;
+  f.defined = component_[e.pos] == component_[e.neg];
+  if (node_unknown_[e.pos] != kNone) f.unknowns.push_back({node_unknown_[e.pos], 1.0});
+  if (node_unknown_[e.neg] != kNone) f.unknowns.push_back({node_unknown_[e.neg], -1.0});
+  return f;
+}
+
+LinearForm NodalSystem::sensed_current(ElementId id) const {
+  const Element& e = circuit_->elements()[id];
+  LinearForm f;
+  if (branch_unknown_[id] != kNone) {
+    f.unknowns.push_back({branch_unknown_[id], 1.0});
+    return f;
+  }
+  switch (e.kind) {
+    case ElementKind::current_source: f.inputs.push_back({source_input_[id], 1.0}); break;
+    case ElementKind::inductor:
+      if (id == storage_) f.inputs.push_back({0, 1.0});
+      break;
+    default: break;  // open: no current
+  }
+  return f;
+}
+
+LinearForm NodalSystem::element_current(ElementId id) const {
+  const Element& e = circuit_->elements()[id];
+  if (branch_unknown_[id] != kNone) return sensed_current(id);
+  auto scaled_voltage = [&](double conductance) {
+    LinearForm f = element_voltage(id);
+    for (auto& [x, c] : f.unknowns) c *= conductance;
+    f.defined = true;  // a conductance's current is defined even where its voltage floats
+    return f;
+  };
+  switch (e.kind) {
+    case ElementKind::resistor: return scaled_voltage(1.0 / e.value);
+    case ElementKind::switch_: {
+      double r = switch_closed(id) ? e.r_on : e.r_off;
+      if (!std::isfinite(r)) return LinearForm{};
+      return scaled_voltage(1.0 / r);
+    }
+    case ElementKind::vccs: {
+      LinearForm f;
+      if (node_unknown_[e.sense_pos] != kNone) f.unknowns.push_back({node_unknown_[e.sense_pos], e.value});
+      if (node_unknown_[e.sense_neg] != kNone) f.unknowns.push_back({node_unknown_[e.sense_neg], -e.value});
+      f.defined = component_[e.sense_pos] == component_[e.sense_neg];
+      return f;
+    }
+    case ElementKind::cccs: {
+      LinearForm f = sensed_current(e.sense_element);
+      for (auto& [x, c] : f.unknowns) c *= e.value;
+      for (auto& [u, c] : f.inputs) c *= e.value;
+      return f;
+    }
+    default: return sensed_current(id);
+  }
+}
+
+LinearForm NodalSystem::test_port_current() const {
+  LinearForm f;
+  if (test_branch_ != kNone) f.unknowns.push_back({test_branch_, 1.0});
+  return f;
+}
+
+LinearForm NodalSystem::port_quantity() const {
+  if (storage_ == kNone) return LinearForm{};
+  const Element& e = circuit_->elements()[storage_];
+  return e.kind == ElementKind::capacitor ? element_current(storage_) : element_voltage(storage_);
+}
+
+}  // namespace netfold

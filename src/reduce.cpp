@@ -1,0 +1,120 @@
+#include "netfold/reduce.hpp"
+
+#include <algorithm>
+#include <cmath>
+
+#include <Eigen/LU>
+
+#include "linear_solver.hpp"
+
+namespace netfold {
+
+ReducedNetwork::ReducedNetwork(const Circuit& circuit, const SwitchPositions& positions, const BuildOptions& options)
+    : system_(build_nodal_system(circuit, positions, options)) {
+  const auto& g = system_.matrix();
+  auto solver = factor_nodal_matrix(g);
+  rcond_ = solver->rcond();
+  solver_name_ = solver->kind() == SolverKind::dense_lu ? "dense LU" : "KLU";
+  if (rcond_ < kSingularRcond) {
+    // Name what is degenerate: the unknowns a null vector of G involves.
+    if (g.rows() <= kDenseLimit && g.rows() > 0) {
+      Eigen::FullPivLU<Eigen::MatrixXd> lu{Eigen::MatrixXd(g)};
+      lu.setThreshold(1e-10);
+      Eigen::MatrixXd kernel = lu.kernel();
+      if (kernel.cols() > 0 && kernel.norm() > 0) {
+        Eigen::VectorXd v = kernel.col(0).cwiseAbs();
+        double vmax = v.maxCoeff();
+        for (Eigen::Index i = 0; i < v.size(); ++i)
+          if (v[i] > 1e-6 * vmax) singular_unknowns_.push_back(static_cast<std::uint32_t>(i));
+      }
+    }
+    return;
+  }
+  response_ = solver->solve(Eigen::MatrixXd(system_.inputs()));
+  if (!response_.allFinite()) rcond_ = 0.0;
+}
+
+std::vector<double> ReducedNetwork::coefficients(const LinearForm& form) const {
+  std::vector<double> c(system_.input_count(), 0.0);
+  if (response_.size() == 0 && system_.unknown_count() > 0) throw NumericError("coefficients of a singular network");
+  for (auto [x, coef] : form.unknowns)
+    for (std::uint32_t j = 0; j < c.size(); ++j) c[j] += coef * response_(x, j);
+  for (auto [u, coef] : form.inputs) c[u] += coef;
+  return c;
+}
+
+namespace {
+
+// Largest conductance and resistance of the resistive parts: the scales below which a
+// computed coefficient is rounding noise rather than a physical value.
+struct Scales {
+  double conductance = 0.0;
+  double resistance = 0.0;
+};
+
+Scales resistive_scales(const Circuit& circuit) {
+  Scales s;
+  auto take = [&](double r) {
+    if (r > 0 && std::isfinite(r)) {
+      s.conductance = std::max(s.conductance, 1.0 / r);
+      s.resistance = std::max(s.resistance, r);
+    }
+  };
+  for (const auto& e : circuit.elements()) {
+    if (e.kind == ElementKind::resistor) take(e.value);
+    if (e.kind == ElementKind::switch_) {
+      take(e.r_on);
+      take(e.r_off);
+    }
+    if (e.kind == ElementKind::ccvs) take(std::fabs(e.value));
+    if (e.kind == ElementKind::vccs && e.value != 0) take(1.0 / std::fabs(e.value));
+  }
+  return s;
+}
+
+}  // namespace
+
+Equivalent storage_equivalent(const Circuit& circuit, const ReducedNetwork& network, ElementId storage) {
+  const Element& e = circuit.element(storage);
+  std::vector<double> c = network.coefficients(network.system().port_quantity());
+  const Scales scales = resistive_scales(circuit);
+  Equivalent eq;
+  double c0 = c[0];
+  c[0] = 0.0;
+  if (e.kind == ElementKind::capacitor) {
+    // i_C = c0·v_C + Σ c_j·u_j
+    if (std::fabs(c0) <= 1e-13 * scales.conductance) c0 = 0.0;
+    eq.rate = c0 / e.value;
+    eq.isc = c;
+    if (c0 == 0.0) {
+      eq.rth = kInfinity;
+    } else {
+      eq.rth = -1.0 / c0;
+      eq.voc = c;
+      for (double& v : eq.voc) v = -v / c0;
+    }
+  } else {
+    // v_L = c0·i_L + Σ c_j·u_j
+    if (std::fabs(c0) <= 1e-13 * scales.resistance) c0 = 0.0;
+    eq.rate = c0 / e.value;
+    eq.rth = -c0;
+    eq.voc = c;
+    if (c0 != 0.0) {
+      eq.isc = c;
+      for (double& v : eq.isc) v = v / eq.rth;
+    }
+  }
+  if (eq.rth == 0.0) eq.rth = 0.0;  // no negative zero in reports
+  return eq;
+}
+
+const ReducedNetwork& NetworkCache::get(const SwitchPositions& positions, PortMode mode) {
+  for (const auto& entry : entries_)
+    if (entry.mode == mode && entry.positions == positions) return *entry.network;
+  BuildOptions options;
+  options.mode = mode;
+  entries_.push_back({positions, mode, std::make_unique<ReducedNetwork>(*circuit_, positions, options)});
+  return *entries_.back().network;
+}
+
+}  // namespace netfold

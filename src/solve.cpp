@@ -1,0 +1,648 @@
+#include "netfold/solve.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <numbers>
+#include <set>
+
+#include <fmt/format.h>
+#include <fmt/ranges.h>
+
+#include "netfold/units.hpp"
+
+namespace netfold {
+
+const char* const kHazardCaution =
+    "CAUTION: this circuit works above 50 V AC or 120 V DC, where contact can kill. These results are "
+    "design estimates: follow local electrical codes and the component datasheets; work on such circuits "
+    "is for qualified persons.";
+
+namespace {
+
+// A switching instant: a switch event or a step of a source.
+struct Event {
+  double time = 0.0;
+  ElementId element = kNone;
+  bool closes = false;  // switches
+  double step = 0.0;    // steps: the level change
+};
+
+std::string positions_text(const Circuit& c, const SwitchPositions& p) {
+  std::string out;
+  std::size_t k = 0;
+  for (const auto& e : c.elements()) {
+    if (e.kind != ElementKind::switch_) continue;
+    if (!out.empty()) out += ", ";
+    out += fmt::format("{} {}", e.name, p.closed[k++] ? "closed" : "open");
+  }
+  return out;
+}
+
+std::string segment_text(const Circuit& c, const Segment& s) {
+  std::string pos = positions_text(c, s.positions);
+  return fmt::format("segment {} ({} .. {}{}{})", s.number, format_si(s.from, "s"), format_si(s.to, "s"),
+                     pos.empty() ? "" : ", ", pos);
+}
+
+std::string names_of(const Circuit& c, const std::vector<ElementId>& ids) {
+  std::string out;
+  for (std::size_t i = 0; i < ids.size(); ++i) {
+    if (i > 0) out += i + 1 == ids.size() ? " and " : ", ";
+    out += c.element(ids[i]).name;
+  }
+  return out;
+}
+
+std::string node_names(const Circuit& c, const std::vector<NodeId>& ids) {
+  std::string out;
+  for (std::size_t i = 0; i < ids.size() && i < 6; ++i) {
+    if (i > 0) out += ", ";
+    out += c.nodes()[ids[i]];
+  }
+  if (ids.size() > 6) out += fmt::format(" and {} more", ids.size() - 6);
+  return out;
+}
+
+[[noreturn]] void fail(const Circuit& c, SourceLoc loc, std::string message) {
+  throw InputError(c.diagnostic(loc, std::move(message)));
+}
+
+// Turns a structural problem of a segment's network into a message in circuit terms.
+[[noreturn]] void report_problem(const Circuit& c, const TopologyProblem& p, const std::string& where,
+                                 ElementId storage, double state) {
+  using Kind = TopologyProblem::Kind;
+  const auto& el = c.elements();
+  switch (p.kind) {
+    case Kind::capacitor_loop: {
+      std::vector<ElementId> others;
+      for (ElementId id : p.elements)
+        if (id != storage) others.push_back(id);
+      fail(c, el[storage].loc,
+           fmt::format("capacitor {} is connected straight across {} in {}: nothing limits its current, so "
+                       "its voltage would have to jump (R_th = 0); add the series resistance that is really "
+                       "there (the source's internal resistance, wiring, or the capacitor's ESR)",
+                       el[storage].name, names_of(c, others), where));
+    }
+    case Kind::voltage_loop: {
+      bool only_switches = std::all_of(p.elements.begin(), p.elements.end(),
+                                       [&](ElementId id) { return el[id].kind == ElementKind::switch_; });
+      ElementId first = p.elements.front();
+      for (ElementId id : p.elements)
+        if (el[id].kind != ElementKind::switch_) first = std::min(first, id);
+      if (only_switches)
+        fail(c, el[first].loc,
+             fmt::format("closed switches {} form a loop with no resistance in {}: the current that circulates "
+                         "in it is undefined; give one of them an 'on' resistance",
+                         names_of(c, p.elements), where));
+      fail(c, el[first].loc,
+           fmt::format("{} form a loop of ideal voltage sources in {}: their voltages fight and the loop "
+                       "current is undefined; add a series resistance (a source's internal resistance) or "
+                       "remove one of them",
+                       names_of(c, p.elements), where));
+    }
+    case Kind::current_cut_set: {
+      ElementId first = p.elements.front();
+      fail(c, el[first].loc,
+           fmt::format("{} {} the only connection of node{} {} in {}: a current source cannot drive a node "
+                       "that has no other path; add a resistance across {} or from {} to the reference",
+                       names_of(c, p.elements), p.elements.size() > 1 ? "are" : "is",
+                       p.nodes.size() > 1 ? "s" : "", node_names(c, p.nodes), where, el[first].name,
+                       c.nodes()[p.nodes.front()]));
+    }
+    case Kind::inductor_open:
+      fail(c, el[storage].loc,
+           fmt::format("inductor {} carries {} at the start of {}, but then has no path for its current "
+                       "(R_th = ∞): the current would have to jump to zero; add a freewheel resistor across {} "
+                       "or an 'off' resistance to the switch that opens",
+                       el[storage].name, format_si(state, "A"), where, el[storage].name));
+    case Kind::test_port_loop: break;
+  }
+  throw NumericError("unhandled topology problem");
+}
+
+[[noreturn]] void report_singular(const Circuit& c, const ReducedNetwork& net, const std::string& where) {
+  const auto& el = c.elements();
+  std::vector<ElementId> controlled;
+  for (ElementId i = 0; i < el.size(); ++i)
+    if (el[i].kind == ElementKind::vcvs || el[i].kind == ElementKind::vccs || el[i].kind == ElementKind::ccvs ||
+        el[i].kind == ElementKind::cccs)
+      controlled.push_back(i);
+  if (!controlled.empty()) {
+    fail(c, el[controlled.front()].loc,
+         fmt::format("the network equations are singular in {} (reciprocal condition {:.1e}): the controlled "
+                     "source{} {} make{} them degenerate, as a loop gain of exactly 1 or a source that controls "
+                     "itself does; check the gains and the sense connections",
+                     where, net.rcond(), controlled.size() > 1 ? "s" : "", names_of(c, controlled),
+                     controlled.size() > 1 ? "" : "s"));
+  }
+  // No controlled source: the values span too wide a range for double precision.
+  ElementId smallest = kNone, largest = kNone;
+  for (ElementId i = 0; i < el.size(); ++i) {
+    if (el[i].kind != ElementKind::resistor) continue;
+    if (smallest == kNone || el[i].value < el[smallest].value) smallest = i;
+    if (largest == kNone || el[i].value > el[largest].value) largest = i;
+  }
+  SourceLoc loc = smallest != kNone ? el[smallest].loc : SourceLoc{1, 1};
+  std::string detail;
+  if (smallest != kNone && smallest != largest)
+    detail = fmt::format(": resistances range from {} ({}) to {} ({})", format_si(el[smallest].value, "Ω"),
+                         el[smallest].name, format_si(el[largest].value, "Ω"), el[largest].name);
+  fail(c, loc,
+       fmt::format("the network equations are too ill-conditioned to solve in {} (reciprocal condition "
+                   "{:.1e}){}; replace a near-zero resistance by a closed switch or a near-infinite one by an "
+                   "open circuit",
+                   where, net.rcond(), detail));
+}
+
+double slowest_frequency(const Circuit& c) {
+  double f = 0.0;
+  for (const auto& e : c.elements())
+    for (const auto& s : e.waveform.sinusoids)
+      if (s.amplitude != 0.0 && (f == 0.0 || s.frequency < f)) f = s.frequency;
+  return f;
+}
+
+double level_before_zero(const Waveform& w) {
+  double v = w.dc;
+  for (const auto& s : w.steps)
+    if (s.time < 0.0) v += s.level;
+  return v;
+}
+
+}  // namespace
+
+const ReducedNetwork& Solution::network(const Segment& segment) const {
+  return cache_->get(segment.positions, segment.mode);
+}
+
+Drive Solution::drive_of(const std::vector<double>& c, const Segment& segment) const {
+  Drive d;
+  for (std::size_t k = 0; k < sources_.size(); ++k) {
+    double coef = c.at(k + 1);
+    if (coef == 0.0) continue;
+    const Element& src = circuit_->element(sources_[k]);
+    d.dc += coef * (segment.number == 0 ? level_before_zero(src.waveform) : src.waveform.level_at(segment.from));
+    double shift = 0.0;
+    if (options_.source_phase && options_.source_phase->first == sources_[k] && !src.waveform.sinusoids.empty())
+      shift = options_.source_phase->second - src.waveform.sinusoids.front().phase;
+    for (const auto& s : src.waveform.sinusoids)
+      d.add_phasor(s.frequency, coef * std::polar(s.amplitude, s.phase + shift));
+  }
+  return d;
+}
+
+const Segment& Solution::segment_at(double t) const {
+  auto it = std::upper_bound(segments_.begin(), segments_.end(), t,
+                             [](double x, const Segment& s) { return x < s.from; });
+  if (it == segments_.begin()) return segments_.front();
+  return *(it - 1);
+}
+
+LinearForm Solution::observable_form(const Observable& obs, const NodalSystem& sys, bool want_current) const {
+  switch (obs.kind) {
+    case ObservableKind::node_voltage: return sys.node_voltage(obs.node_a);
+    case ObservableKind::node_difference: {
+      LinearForm a = sys.node_voltage(obs.node_a), b = sys.node_voltage(obs.node_b);
+      for (auto [x, c] : b.unknowns) a.unknowns.push_back({x, -c});
+      a.defined = sys.component_of(obs.node_a) == sys.component_of(obs.node_b);
+      return a;
+    }
+    case ObservableKind::element_voltage: return sys.element_voltage(obs.element);
+    case ObservableKind::element_current: return sys.element_current(obs.element);
+    case ObservableKind::element_power:
+      return want_current ? sys.element_current(obs.element) : sys.element_voltage(obs.element);
+  }
+  return {};
+}
+
+Wave Solution::observable_wave(const LinearForm& form, const Segment& segment) const {
+  std::vector<double> c = network(segment).coefficients(form);
+  return affine_wave(segment.state, c[0], drive_of(c, segment));
+}
+
+std::vector<Piece> Solution::pieces(const Observable& obs) const {
+  std::vector<Piece> out;
+  out.reserve(segments_.size());
+  for (const auto& seg : segments_) {
+    const NodalSystem& sys = network(seg).system();
+    LinearForm f = observable_form(obs, sys, false);
+    if (!f.defined) {
+      SourceLoc loc = obs.loc.line > 0 ? obs.loc : (storage_ != kNone ? circuit_->element(storage_).loc : SourceLoc{});
+      std::string fix = obs.kind == ObservableKind::element_voltage || obs.kind == ObservableKind::element_power
+                            ? "its two ends are in parts of the network that are not connected"
+                            : "the node has no path to the reference there";
+      throw InputError(circuit_->diagnostic(
+          loc, fmt::format("'{}' is not defined in {}: {}; add a resistance to the reference, or give the open "
+                           "switch an 'off' resistance",
+                           obs.text, segment_text(*circuit_, seg), fix)));
+    }
+    Piece p{observable_wave(f, seg), std::nullopt};
+    if (obs.kind == ObservableKind::element_power) p.g = observable_wave(observable_form(obs, sys, true), seg);
+    out.push_back(std::move(p));
+  }
+  return out;
+}
+
+double Solution::value(const Observable& obs, double t) const {
+  const Segment& seg = segment_at(t);
+  const NodalSystem& sys = network(seg).system();
+  Piece p{observable_wave(observable_form(obs, sys, false), seg), std::nullopt};
+  if (obs.kind == ObservableKind::element_power) p.g = observable_wave(observable_form(obs, sys, true), seg);
+  return p.value(t);
+}
+
+Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<NetworkCache> cache) {
+  Solution s;
+  s.circuit_ = &c;
+  s.cache_ = cache ? std::move(cache) : std::make_shared<NetworkCache>(c);
+  s.options_ = options;
+  const auto& el = c.elements();
+
+  auto storages = c.storage_elements();
+  if (storages.size() > 1) {
+    const Element& first = el[storages[0]];
+    const Element& second = el[storages[1]];
+    std::vector<std::string> names;
+    for (ElementId id : storages) names.push_back(el[id].name);
+    fail(c, second.loc,
+         fmt::format("{} is a second storage element ({} at line {} is the first; the circuit has {}: {}): netfold "
+                     "solves circuits with one capacitor or inductor; combine them into one, or model all but one "
+                     "as a source or a resistance",
+                     second.name, first.name, first.loc.line, storages.size(), fmt::join(names, ", ")));
+  }
+  s.storage_ = storages.empty() ? kNone : storages.front();
+  s.sources_ = independent_sources(c);
+  const double storage_value = s.storage_ != kNone ? el[s.storage_].value : 1.0;
+
+  // Switching instants, with a swept first `closes` moved.
+  std::vector<Event> events;
+  for (ElementId i = 0; i < el.size(); ++i) {
+    const Element& e = el[i];
+    bool first_closes_seen = false;
+    for (const auto& ev : e.events) {
+      double t = ev.time;
+      if (ev.closes && !first_closes_seen) {
+        first_closes_seen = true;
+        if (options.first_closes && options.first_closes->first == i) t = options.first_closes->second;
+      }
+      events.push_back({t, i, ev.closes, 0.0});
+    }
+    for (const auto& st : e.waveform.steps)
+      if (st.time > 0.0) events.push_back({st.time, i, false, st.level});
+  }
+  std::stable_sort(events.begin(), events.end(), [](const Event& a, const Event& b) { return a.time < b.time; });
+
+  auto positions_at = [&](double t) {
+    SwitchPositions p = positions_before_zero(c);
+    std::size_t k = 0;
+    for (ElementId i = 0; i < el.size(); ++i) {
+      if (el[i].kind != ElementKind::switch_) continue;
+      bool first_closes_seen = false;
+      for (const auto& ev : el[i].events) {
+        double te = ev.time;
+        if (ev.closes && !first_closes_seen) {
+          first_closes_seen = true;
+          if (options.first_closes && options.first_closes->first == i) te = options.first_closes->second;
+        }
+        if (te <= t) p.closed[k] = ev.closes;
+      }
+      ++k;
+    }
+    return p;
+  };
+
+  // The window: declared, or 0 .. last event + max(8 τ of the last segment, 5 slowest periods).
+  if (options.window || c.window()) {
+    s.window_ = options.window ? *options.window : *c.window();
+    s.window_default_ = false;
+  } else {
+    double last_event = events.empty() ? 0.0 : events.back().time;
+    double span = 0.0;
+    if (s.storage_ != kNone) {
+      const ReducedNetwork& net = s.cache_->get(positions_at(last_event));
+      bool held = false;
+      for (const auto& p : net.system().problems()) held |= p.kind == TopologyProblem::Kind::inductor_open;
+      if (!held && net.system().problems().empty() && net.rcond() >= kSingularRcond) {
+        Equivalent eq = storage_equivalent(c, net, s.storage_);
+        if (eq.rate != 0.0) span = 8.0 / std::fabs(eq.rate) * options.testing_tau_scale;
+      }
+    }
+    double f = slowest_frequency(c);
+    if (f > 0.0) span = std::max(span, 5.0 / f);
+    if (span == 0.0) {
+      span = last_event > 0.0 ? last_event : 1.0;
+      s.warnings_.push_back(fmt::format("the circuit has no finite time constant and no sinusoid to size the "
+                                        "window; it was set to 0 .. {}: set 'window' to choose",
+                                        format_si(last_event + span, "s")));
+    }
+    s.window_ = Window{0.0, last_event + span, {}};
+  }
+  const double t_end = s.window_.to;
+  s.resolution_ = c.resolution().value_or((s.window_.to - s.window_.from) / 4000.0);
+  if (c.resolution() && *c.resolution() > s.window_.to - s.window_.from) {
+    SourceLoc loc = c.window() ? c.window()->loc : SourceLoc{1, 1};
+    fail(c, loc,
+         fmt::format("the resolution {} is longer than the window {} .. {}; the CSV would hold one row: make the "
+                     "window longer or the resolution shorter",
+                     format_si(*c.resolution(), "s"), format_si(s.window_.from, "s"), format_si(s.window_.to, "s")));
+  }
+  for (const auto& ev : events) {
+    if (ev.time < t_end) continue;
+    s.warnings_.push_back(fmt::format("{}'s event at {} is at or after the end of the window ({}); it is ignored",
+                                      el[ev.element].name, format_si(ev.time, "s"), format_si(t_end, "s")));
+  }
+
+  // The state at t = 0−.
+  if (s.storage_ == kNone) {
+    s.initial_source_ = InitialStateSource::none;
+  } else if (options.initial_state) {
+    s.initial_state_ = *options.initial_state;
+    s.initial_source_ = InitialStateSource::option;
+  } else if (el[s.storage_].initial) {
+    s.initial_state_ = *el[s.storage_].initial;
+    s.initial_source_ = InitialStateSource::attribute;
+  } else {
+    Segment pre;
+    pre.number = 0;  // "before t = 0" for drive_of
+    pre.positions = positions_before_zero(c);
+    const ReducedNetwork& net = s.cache_->get(pre.positions);
+    const Element& st = el[s.storage_];
+    std::string reason;
+    if (!net.system().problems().empty()) {
+      reason = fmt::format("{} is isolated before t = 0", st.name);
+    } else if (net.rcond() < kSingularRcond) {
+      reason = "the network before t = 0 is singular";
+    } else {
+      Equivalent eq = storage_equivalent(c, net, s.storage_);
+      if (eq.rate < 0.0) {
+        std::vector<double> cp = net.coefficients(net.system().port_quantity());
+        for (double& v : cp) v /= storage_value;
+        Drive forcing = s.drive_of(cp, pre);
+        // Steady state of dx/dt = a·x + f(t) at t = 0: −f_dc/a + Σ Re(F/(jω − a)).
+        Wave w = state_wave(0.0, 0.0, eq.rate, 0.0, forcing);
+        s.initial_state_ = w.steady_state()->value(0.0);
+        s.initial_source_ = InitialStateSource::steady_state;
+      } else if (eq.rate == 0.0) {
+        reason = st.kind == ElementKind::capacitor
+                     ? fmt::format("{} sees no resistance before t = 0, so its voltage there is undetermined", st.name)
+                     : fmt::format("{} sees no resistance before t = 0, so its current there is undetermined", st.name);
+      } else {
+        reason = "the network before t = 0 is unstable (negative time constant) and has no steady state";
+      }
+    }
+    if (s.initial_source_ != InitialStateSource::steady_state) {
+      s.initial_source_ = InitialStateSource::undetermined;
+      s.initial_note_ = reason;
+      s.warnings_.push_back(fmt::format("{}: {} starts from 0 {}", reason, st.name,
+                                        st.kind == ElementKind::capacitor ? "V" : "A"));
+    }
+  }
+
+  // Segment boundaries: 0, every event inside the window, the window's end.
+  std::vector<double> bounds{0.0};
+  for (const auto& ev : events)
+    if (ev.time > 0.0 && ev.time < t_end && ev.time != bounds.back()) bounds.push_back(ev.time);
+  bounds.push_back(t_end);
+
+  double state = s.initial_state_;
+  double state_scale = std::fabs(state);
+  for (std::size_t k = 0; k + 1 < bounds.size(); ++k) {
+    Segment seg;
+    seg.number = static_cast<int>(k + 1);
+    seg.from = bounds[k];
+    seg.to = bounds[k + 1];
+    seg.positions = positions_at(seg.from);
+    for (const auto& ev : events) {
+      if (ev.time != seg.from && !(k == 0 && ev.time <= 0.0)) continue;
+      if (el[ev.element].kind == ElementKind::switch_)
+        seg.changes.push_back(fmt::format("{} {}", el[ev.element].name, ev.closes ? "closes" : "opens"));
+      else
+        seg.changes.push_back(fmt::format("{} steps by {}", el[ev.element].name,
+                                          format_si(ev.step, el[ev.element].kind == ElementKind::voltage_source ? "V" : "A")));
+    }
+    seg.state_start = state;
+    const std::string where = segment_text(c, seg);
+
+    const ReducedNetwork* net = &s.cache_->get(seg.positions);
+    for (const auto& p : net->system().problems()) {
+      if (p.kind != TopologyProblem::Kind::inductor_open) report_problem(c, p, where, s.storage_, state);
+      // The current may stay at zero: then it is held there, else it would have to jump.
+      if (std::fabs(state) > 1e-12 * state_scale || (state != 0.0 && state_scale == 0.0))
+        report_problem(c, p, where, s.storage_, state);
+      seg.mode = PortMode::held_at_zero;
+    }
+    if (seg.mode == PortMode::held_at_zero) {
+      state = 0.0;
+      seg.state_start = 0.0;
+      net = &s.cache_->get(seg.positions, seg.mode);
+      for (const auto& p : net->system().problems()) report_problem(c, p, where, s.storage_, state);
+    }
+    if (net->rcond() < kSingularRcond) report_singular(c, *net, where);
+    seg.rcond = net->rcond();
+    seg.solver = net->solver_name();
+
+    if (s.storage_ == kNone || seg.mode == PortMode::held_at_zero) {
+      seg.state = constant_wave(seg.from, seg.to, 0.0);
+      seg.rate = 0.0;
+      seg.tau = s.storage_ == kNone ? kInfinity : 0.0;
+      seg.voc_defined = seg.isc_defined = false;
+      if (seg.mode == PortMode::held_at_zero) seg.equivalent.rth = kInfinity;
+    } else {
+      seg.equivalent = storage_equivalent(c, *net, s.storage_);
+      seg.rate = seg.equivalent.rate / options.testing_tau_scale;
+      seg.tau = seg.rate == 0.0 ? kInfinity : -1.0 / seg.rate;
+      seg.voc_defined = !seg.equivalent.voc.empty();
+      seg.isc_defined = !seg.equivalent.isc.empty();
+      if (seg.voc_defined) seg.voc = s.drive_of(seg.equivalent.voc, seg);
+      if (seg.isc_defined) seg.isc = s.drive_of(seg.equivalent.isc, seg);
+      std::vector<double> cp = net->coefficients(net->system().port_quantity());
+      for (double& v : cp) v /= storage_value;
+      seg.state = state_wave(seg.from, seg.to, seg.rate, state, s.drive_of(cp, seg));
+      if (seg.unstable())
+        s.warnings_.push_back(fmt::format("{} is unstable: its time constant is negative ({}), so the response "
+                                          "grows as e^(t/{}); a controlled source supplies more than the network "
+                                          "absorbs",
+                                          segment_text(c, seg), format_si(seg.tau, "s"), format_si(-seg.tau, "s")));
+      if (seg.rcond < 1e-9)
+        s.warnings_.push_back(fmt::format("the equations of {} are ill-conditioned (reciprocal condition {:.1e}); "
+                                          "expect fewer correct digits than usual",
+                                          segment_text(c, seg), seg.rcond));
+    }
+    state = seg.state.value(seg.to);
+    if (!std::isfinite(state))
+      fail(c, s.storage_ != kNone ? el[s.storage_].loc : SourceLoc{1, 1},
+           fmt::format("the response grows beyond any representable value in {}; shorten the window",
+                       segment_text(c, seg)));
+    state_scale = std::max(state_scale, std::fabs(state));
+    s.segments_.push_back(std::move(seg));
+  }
+
+  // What is reported: the watch list, or the storage element's voltage and current.
+  if (!c.watches().empty()) {
+    s.observables_ = c.watches();
+  } else if (s.storage_ != kNone) {
+    for (auto kind : {ObservableKind::element_voltage, ObservableKind::element_current}) {
+      Observable o;
+      o.kind = kind;
+      o.element = s.storage_;
+      o.text = el[s.storage_].name + (kind == ObservableKind::element_voltage ? ".v" : ".i");
+      s.observables_.push_back(o);
+    }
+  } else {
+    for (NodeId n = 0; n < c.nodes().size() && s.observables_.size() < 8; ++n) {
+      if (n == c.ground()) continue;
+      Observable o;
+      o.kind = ObservableKind::node_voltage;
+      o.node_a = n;
+      o.text = "@" + c.nodes()[n];
+      s.observables_.push_back(o);
+    }
+  }
+  if (s.storage_ == kNone)
+    s.warnings_.push_back("the circuit has no capacitor or inductor: it is purely resistive, so every segment is "
+                          "its DC/AC steady state and there is no time constant");
+  return s;
+}
+
+namespace {
+
+// Extremes of a list of pieces over [from, to].
+Extremes extremes_over(const std::vector<Piece>& pieces, double from, double to) {
+  Extremes ex;
+  bool first = true;
+  for (const auto& p : pieces) {
+    double a = std::max(from, p.t0()), b = std::min(to, p.t1());
+    if (a > b) continue;
+    Extremes e = find_extremes(p, a, b);
+    if (first || e.max > ex.max) {
+      ex.max = e.max;
+      ex.t_max = e.t_max;
+    }
+    if (first || e.min < ex.min) {
+      ex.min = e.min;
+      ex.t_min = e.t_min;
+    }
+    first = false;
+  }
+  return ex;
+}
+
+double lowest_frequency(const Circuit& c) { return slowest_frequency(c); }
+
+double steady_peak(const Drive& d) {
+  if (d.phasors.empty()) return std::fabs(d.dc);
+  Wave w;
+  w.offset = d.dc;
+  w.phasors = d.phasors;
+  double f0 = d.phasors.front().frequency;
+  w.t0 = 0.0;
+  w.t1 = 1.0 / f0;
+  Extremes e = find_extremes(Piece{w, std::nullopt}, 0.0, w.t1);
+  return std::max(std::fabs(e.max), std::fabs(e.min));
+}
+
+}  // namespace
+
+Figures compute_figures(const Solution& solution, const Observable& obs) {
+  Figures f;
+  const Window& win = solution.window();
+  std::vector<Piece> pieces = solution.pieces(obs);
+  Extremes ex = extremes_over(pieces, win.from, win.to);
+  f.max = ex.max;
+  f.t_max = ex.t_max;
+  f.min = ex.min;
+  f.t_min = ex.t_min;
+  if (std::fabs(ex.max) >= std::fabs(ex.min)) {
+    f.peak = std::fabs(ex.max);
+    f.t_peak = ex.t_max;
+  } else {
+    f.peak = std::fabs(ex.min);
+    f.t_peak = ex.t_min;
+  }
+  f.final_value = pieces.back().value(win.to);
+  if (obs.kind == ObservableKind::element_power) return f;
+
+  const Wave& last = pieces.back().f;
+  f.steady = last.steady_state();
+  if (f.steady) {
+    f.dc = f.steady->dc;
+    double f0 = lowest_frequency(solution.circuit());
+    if (f0 > 0.0) {
+      std::complex<double> p = 0.0;
+      for (const auto& ph : f.steady->phasors)
+        if (ph.frequency == f0) p = ph.value;
+      f.amplitude = std::abs(p);
+      if (std::abs(p) > 0.0) f.phase = std::arg(p);
+    }
+    // Settling: after the last event, y − y_ss = D·e^{a(t − t0)}.
+    double d = last.a < 0.0 ? last.transient + last.drift / last.a : (last.a == 0.0 ? 0.0 : last.transient);
+    double reference = steady_peak(*f.steady);
+    if (reference == 0.0) reference = f.peak;
+    double threshold = 0.01 * reference;
+    if (d == 0.0 || std::fabs(d) <= threshold) {
+      f.settling_time = 0.0;
+    } else if (last.a < 0.0 && threshold > 0.0) {
+      f.settling_time = std::log(std::fabs(d) / threshold) / -last.a;
+    }
+  }
+  return f;
+}
+
+namespace {
+
+Observable element_observable(const Circuit& c, ElementId id, ObservableKind kind) {
+  Observable o;
+  o.kind = kind;
+  o.element = id;
+  o.text = c.element(id).name + (kind == ObservableKind::element_voltage ? ".v" : ".i");
+  o.loc = c.element(id).loc;
+  return o;
+}
+
+}  // namespace
+
+double element_energy(const Solution& solution, ElementId id) {
+  const Circuit& c = solution.circuit();
+  auto v = solution.pieces(element_observable(c, id, ObservableKind::element_voltage));
+  auto i = solution.pieces(element_observable(c, id, ObservableKind::element_current));
+  const Window& win = solution.window();
+  double sum = 0.0;
+  for (std::size_t k = 0; k < v.size(); ++k) {
+    double a = std::max(win.from, v[k].t0()), b = std::min(win.to, v[k].t1());
+    if (a < b) sum += integral_of_product(v[k].f, i[k].f, a, b);
+  }
+  return sum;
+}
+
+double element_i2t(const Solution& solution, ElementId id) {
+  const Circuit& c = solution.circuit();
+  auto i = solution.pieces(element_observable(c, id, ObservableKind::element_current));
+  const Window& win = solution.window();
+  double sum = 0.0;
+  for (const auto& p : i) {
+    double a = std::max(win.from, p.t0()), b = std::min(win.to, p.t1());
+    if (a < b) sum += integral_of_product(p.f, p.f, a, b);
+  }
+  return std::max(0.0, sum);
+}
+
+double element_mean_power(const Solution& solution, ElementId id) {
+  const Circuit& c = solution.circuit();
+  const Window& win = solution.window();
+  if (lowest_frequency(c) > 0.0) {
+    auto v = solution.pieces(element_observable(c, id, ObservableKind::element_voltage));
+    auto i = solution.pieces(element_observable(c, id, ObservableKind::element_current));
+    auto vs = v.back().f.steady_state(), is = i.back().f.steady_state();
+    if (vs && is) {
+      // Mean of a product of sinusoids: DC·DC + ½·Σ Re(V·conj(I)) at equal frequencies.
+      double p = vs->dc * is->dc;
+      for (const auto& pv : vs->phasors)
+        for (const auto& pi : is->phasors)
+          if (pv.frequency == pi.frequency) p += 0.5 * (pv.value * std::conj(pi.value)).real();
+      return p;
+    }
+  }
+  return element_energy(solution, id) / (win.to - win.from);
+}
+
+}  // namespace netfold
