@@ -601,16 +601,20 @@ Observable element_observable(const Circuit& c, ElementId id, ObservableKind kin
 
 }  // namespace
 
-double element_energy(const Solution& solution, ElementId id) {
+double element_energy(const Solution& solution, ElementId id, double* scale) {
   const Circuit& c = solution.circuit();
   auto v = solution.pieces(element_observable(c, id, ObservableKind::element_voltage));
   auto i = solution.pieces(element_observable(c, id, ObservableKind::element_current));
   const Window& win = solution.window();
-  double sum = 0.0;
+  double sum = 0.0, magnitude = 0.0;
   for (std::size_t k = 0; k < v.size(); ++k) {
     double a = std::max(win.from, v[k].t0()), b = std::min(win.to, v[k].t1());
-    if (a < b) sum += integral_of_product(v[k].f, i[k].f, a, b);
+    if (a >= b) continue;
+    double part = integral_of_product(v[k].f, i[k].f, a, b);
+    sum += part;
+    magnitude += std::fabs(part);
   }
+  if (scale) *scale = magnitude;
   return sum;
 }
 

@@ -166,7 +166,8 @@ std::string format_si(double value, std::string_view unit, int digits) {
     if (unit == "°" || unit == "%") return number + std::string(unit);
     return fmt::format("{} {}{}", number, prefix, unit);
   };
-  bool prefixable = !(unit.empty() || unit == "°" || unit == "%");
+  // A prefix on A²s would read as (mA)²s; the action stays unprefixed.
+  bool prefixable = !(unit.empty() || unit == "°" || unit == "%" || unit == "A²s");
   if (value == 0.0) return join("0", "");
   if (!prefixable) {
     double mag = std::fabs(value);

@@ -151,8 +151,10 @@ struct Figures {
 /// Figures of an observable, from its closed form.
 Figures compute_figures(const Solution& solution, const Observable& observable);
 
-/// Energy absorbed by element `id` over the window, ∫v·i dt (J), exact.
-double element_energy(const Solution& solution, ElementId id);
+/// Energy absorbed by element `id` over the window, ∫v·i dt (J), exact. `scale`, when
+/// given, receives Σ|∫v·i| over the segments: the size of the numbers that were summed, below
+/// which a total is rounding noise (an inductor that gives back all it took nets 0 J).
+double element_energy(const Solution& solution, ElementId id, double* scale = nullptr);
 /// ∫i² dt through element `id` over the window (A²s), exact.
 double element_i2t(const Solution& solution, ElementId id);
 /// Mean power of element `id` over one fundamental period of the steady state, or over

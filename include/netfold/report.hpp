@@ -1,0 +1,123 @@
+#pragma once
+/// \file report.hpp
+/// Last stage of the pipeline: what `solve` and `equiv` print and write — the text report,
+/// the derivation (`--explain`), JSON, CSV waveforms and the SVG plot. Reports are computed
+/// in full before anything is written, and take the stream to write to; library code never
+/// writes to the terminal itself.
+
+#include <filesystem>
+#include <optional>
+#include <ostream>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "netfold/plot.hpp"
+#include "netfold/solve.hpp"
+
+namespace netfold {
+
+/// A rating compared with the solved (or worst-case) stress.
+struct RatingCheck {
+  ElementId element = kNone;
+  RatingKind kind = RatingKind::peak_current;
+  std::string quantity;     ///< "peak voltage", "peak current", "mean power", "energy", "I²t"
+  double rated = 0.0;       ///< SI
+  double actual = 0.0;      ///< SI
+  double used_percent = 0.0;
+  bool exceeded = false;
+  bool worst_case = false;  ///< the actual value is the worst over the declared sweeps
+  std::string unit;         ///< symbol for reports
+  SourceLoc loc;
+};
+
+/// Energy and I²t of an element over the window.
+struct ElementTotals {
+  ElementId element = kNone;
+  double energy = 0.0;  ///< J absorbed
+  double energy_scale = 0.0;  ///< Σ|energy per segment|, for telling a net zero from noise
+  double i2t = 0.0;     ///< A²s
+};
+
+/// The numerical cross-check as the solve report shows it.
+struct VerificationSummary {
+  std::string method = "cvode-bdf";
+  double max_rel_error = 0.0;
+  double rtol = 1e-6;
+  bool passed = false;
+  std::string message;  ///< the comparison with numbers, e.g. where the largest error is
+  long steps = 0;
+  long rhs_evals = 0;
+};
+
+/// Everything `solve` reports, computed once.
+struct SolveReport {
+  const Solution* solution = nullptr;
+  std::vector<Figures> figures;          ///< one per Solution::observables()
+  std::vector<ElementTotals> totals;     ///< elements named by observables and ratings
+  std::vector<RatingCheck> ratings;
+  std::vector<std::string> warnings;     ///< the solution's, plus the hazard caution when due
+  bool hazardous = false;                ///< above 50 V AC (rms) or 120 V DC somewhere
+  std::optional<VerificationSummary> verification;
+};
+
+/// Computes figures, totals and ratings of a solution (ratings against the solved values).
+SolveReport build_solve_report(const Solution& solution);
+
+/// Compares every rating of the circuit with the solution's stress.
+std::vector<RatingCheck> check_ratings(const Solution& solution);
+
+/// The stress a rating limits, from the solution: peak |v| or |i|, mean power, energy or I²t.
+double rating_stress(const Solution& solution, ElementId element, RatingKind kind);
+
+/// "peak voltage", "peak current", "mean power", "energy", "I²t".
+std::string_view rating_quantity(RatingKind kind);
+/// "V", "A", "W", "J", "A²s".
+std::string_view rating_unit(RatingKind kind);
+
+/// True when a source exceeds 50 V AC (rms) or 120 V DC, or a reported voltage exceeds
+/// 120 V peak. (Extra-low-voltage limits: IEC 61140 / IEC 60449 voltage band I, from memory.)
+bool is_hazardous(const Solution& solution, const std::vector<Figures>& figures);
+
+/// The text report of `solve`.
+void write_solve_text(std::ostream& out, const SolveReport& report);
+/// The derivation, step by step with the numbers substituted (`solve --explain`).
+void write_explanation(std::ostream& out, const Solution& solution);
+/// JSON of `solve` (fields of docs/cli.md).
+std::string solve_json(const SolveReport& report);
+/// Waveforms on the resolution grid: `t` then one column per observable, full precision.
+std::string waveform_csv(const Solution& solution);
+/// The watched waveforms on the resolution grid, for render_svg_plot.
+PlotData plot_data(const Solution& solution);
+
+/// The closed form of a Wave as text with numbers, e.g.
+/// "0.8127 A·cos(2π·50 Hz·t - 64.48°) - 0.3497 A·e^(-t/6.667 ms)".
+std::string wave_expression(const Wave& wave, std::string_view unit);
+
+/// A Thevenin/Norton equivalent at a port, for `equiv`.
+struct PortEquivalent {
+  std::string port;            ///< "coil_l" or "a,b"
+  NodeId node_a = kNone, node_b = kNone;
+  const Segment* segment = nullptr;
+  double rth = 0.0;            ///< ohm (may be ∞ or 0)
+  Drive voc;                   ///< DC + phasors, V
+  Drive isc;                   ///< A
+  bool voc_defined = true, isc_defined = true;
+  double state_coefficient = 0.0;  ///< v_oc's share of the storage state, V per V or V per A
+  double state_value = 0.0;        ///< the state at the chosen time
+  double at = 0.0;                 ///< the chosen time
+  bool at_storage = true;
+};
+
+/// The equivalent at the storage element (port empty) or between two nodes, in the segment
+/// holding `at`. Throws InputError for a port that is not connected or names one node twice.
+PortEquivalent port_equivalent(const Solution& solution, std::optional<std::pair<NodeId, NodeId>> port, double at);
+void write_equivalent_text(std::ostream& out, const PortEquivalent& eq, const Solution& solution);
+std::string equivalent_json(const PortEquivalent& eq, const Solution& solution);
+
+/// Writes `content` to `path` through a temporary file and a rename, so that a failure never
+/// leaves a half-written file; "-" writes to `out` instead. An unwritable path is an
+/// InputError (exit 2).
+void write_output(const std::string& path, std::string_view content, std::ostream& out);
+
+}  // namespace netfold

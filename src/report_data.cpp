@@ -1,0 +1,438 @@
+// Report data: ratings, the hazard caution, JSON, CSV, plot data, output files, equivalents.
+#include <cmath>
+#include <cstdio>
+#include <fstream>
+#include <numbers>
+#include <system_error>
+
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+
+#include "netfold/report.hpp"
+#include "netfold/units.hpp"
+
+namespace netfold {
+
+namespace {
+
+constexpr double kRadToDeg = 180.0 / std::numbers::pi;
+
+// JSON has no infinity or NaN: those become null (R_th = ∞ and τ = ∞ are documented so).
+nlohmann::json number(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr); }
+
+nlohmann::json optional_number(const std::optional<double>& v) { return v ? number(*v) : nlohmann::json(nullptr); }
+
+nlohmann::json phasors_json(const Drive& d) {
+  auto arr = nlohmann::json::array();
+  for (const auto& p : d.phasors)
+    arr.push_back({{"frequency", number(p.frequency)},
+                   {"magnitude", number(std::abs(p.value))},
+                   {"phase_deg", number(std::arg(p.value) * kRadToDeg)}});
+  return arr;
+}
+
+Observable element_observable(const Circuit& c, ElementId id, ObservableKind kind) {
+  Observable o;
+  o.kind = kind;
+  o.element = id;
+  o.text = c.element(id).name + (kind == ObservableKind::element_voltage ? ".v" : ".i");
+  o.loc = c.element(id).loc;
+  return o;
+}
+
+}  // namespace
+
+std::string_view rating_quantity(RatingKind kind) {
+  switch (kind) {
+    case RatingKind::peak_voltage: return "peak voltage";
+    case RatingKind::peak_current: return "peak current";
+    case RatingKind::mean_power: return "mean power";
+    case RatingKind::energy: return "energy";
+    case RatingKind::i2t: return "I²t";
+  }
+  return "";
+}
+
+std::string_view rating_unit(RatingKind kind) {
+  switch (kind) {
+    case RatingKind::peak_voltage: return "V";
+    case RatingKind::peak_current: return "A";
+    case RatingKind::mean_power: return "W";
+    case RatingKind::energy: return "J";
+    case RatingKind::i2t: return "A²s";
+  }
+  return "";
+}
+
+double rating_stress(const Solution& solution, ElementId id, RatingKind kind) {
+  const Circuit& c = solution.circuit();
+  switch (kind) {
+    case RatingKind::peak_voltage:
+      return compute_figures(solution, element_observable(c, id, ObservableKind::element_voltage)).peak;
+    case RatingKind::peak_current:
+      return compute_figures(solution, element_observable(c, id, ObservableKind::element_current)).peak;
+    case RatingKind::mean_power: return element_mean_power(solution, id);
+    case RatingKind::energy: return element_energy(solution, id);
+    case RatingKind::i2t: return element_i2t(solution, id);
+  }
+  return 0.0;
+}
+
+std::vector<RatingCheck> check_ratings(const Solution& solution) {
+  std::vector<RatingCheck> out;
+  const auto& el = solution.circuit().elements();
+  for (ElementId id = 0; id < el.size(); ++id)
+    for (const auto& r : el[id].ratings) {
+      RatingCheck rc;
+      rc.element = id;
+      rc.kind = r.kind;
+      rc.quantity = rating_quantity(r.kind);
+      rc.unit = rating_unit(r.kind);
+      rc.rated = r.limit;
+      rc.actual = rating_stress(solution, id, r.kind);
+      rc.used_percent = 100.0 * std::fabs(rc.actual) / r.limit;
+      rc.exceeded = std::fabs(rc.actual) > r.limit;
+      rc.loc = r.loc;
+      out.push_back(rc);
+    }
+  return out;
+}
+
+bool is_hazardous(const Solution& solution, const std::vector<Figures>& figures) {
+  for (const auto& e : solution.circuit().elements()) {
+    if (e.kind != ElementKind::voltage_source) continue;
+    double ac_square = 0.0, dc = std::fabs(e.waveform.dc), level = e.waveform.dc;
+    for (const auto& s : e.waveform.sinusoids) ac_square += 0.5 * s.amplitude * s.amplitude;
+    for (const auto& st : e.waveform.steps) {
+      level += st.level;
+      dc = std::max(dc, std::fabs(level));
+    }
+    if (std::sqrt(ac_square) > 50.0 || dc > 120.0) return true;
+  }
+  for (std::size_t i = 0; i < figures.size() && i < solution.observables().size(); ++i)
+    if (solution.observables()[i].dimension() == Dimension::voltage && figures[i].peak > 120.0) return true;
+  return false;
+}
+
+SolveReport build_solve_report(const Solution& solution) {
+  SolveReport r;
+  r.solution = &solution;
+  const Circuit& c = solution.circuit();
+  for (const auto& obs : solution.observables()) r.figures.push_back(compute_figures(solution, obs));
+  std::vector<ElementId> named;
+  for (const auto& obs : solution.observables())
+    if (obs.element != kNone && std::find(named.begin(), named.end(), obs.element) == named.end())
+      named.push_back(obs.element);
+  for (ElementId id : named) {
+    ElementTotals t;
+    t.element = id;
+    t.energy = element_energy(solution, id, &t.energy_scale);
+    t.i2t = element_i2t(solution, id);
+    r.totals.push_back(t);
+  }
+  r.ratings = check_ratings(solution);
+  r.hazardous = is_hazardous(solution, r.figures);
+  if (r.hazardous) r.warnings.push_back(kHazardCaution);
+  for (const auto& w : solution.warnings()) r.warnings.push_back(w);
+  (void)c;
+  return r;
+}
+
+std::string solve_json(const SolveReport& report) {
+  const Solution& sol = *report.solution;
+  const Circuit& c = sol.circuit();
+  nlohmann::json j;
+  j["title"] = c.title();
+  j["file"] = c.source().path();
+  if (sol.storage() != kNone) {
+    const Element& st = c.element(sol.storage());
+    j["storage"] = {{"name", st.name},
+                    {"kind", std::string(kind_keyword(st.kind))},
+                    {"value", number(st.value)},
+                    {"unit", st.kind == ElementKind::capacitor ? "F" : "H"}};
+  } else {
+    j["storage"] = nullptr;
+  }
+  j["window"] = {{"from", number(sol.window().from)}, {"to", number(sol.window().to)}};
+  j["resolution"] = number(sol.resolution());
+  static const char* kSources[] = {"attribute", "option", "steady_state", "undetermined", "none"};
+  j["initial_state"] = {{"value", number(sol.initial_state())},
+                        {"source", kSources[static_cast<int>(sol.initial_source())]}};
+  auto segs = nlohmann::json::array();
+  for (const auto& s : sol.segments()) {
+    nlohmann::json js{{"number", s.number},
+                      {"from", number(s.from)},
+                      {"to", number(s.to)},
+                      {"rth", number(s.equivalent.rth)},
+                      {"tau", number(s.tau)},
+                      {"state_start", number(s.state_start)},
+                      {"changes", s.changes}};
+    if (s.voc_defined) {
+      js["vth_dc"] = number(s.voc.dc);
+      js["vth_phasors"] = phasors_json(s.voc);
+    } else {
+      js["vth_dc"] = nullptr;
+      js["vth_phasors"] = nullptr;
+    }
+    if (s.isc_defined) {
+      js["isc_dc"] = number(s.isc.dc);
+      js["isc_phasors"] = phasors_json(s.isc);
+    } else {
+      js["isc_dc"] = nullptr;
+      js["isc_phasors"] = nullptr;
+    }
+    js["unstable"] = s.unstable();
+    segs.push_back(js);
+  }
+  j["segments"] = segs;
+  nlohmann::json obs = nlohmann::json::object();
+  for (std::size_t i = 0; i < sol.observables().size(); ++i) {
+    const Figures& f = report.figures[i];
+    obs[sol.observables()[i].text] = {{"peak", number(f.peak)},
+                                      {"t_peak", number(f.t_peak)},
+                                      {"max", number(f.max)},
+                                      {"t_max", number(f.t_max)},
+                                      {"min", number(f.min)},
+                                      {"t_min", number(f.t_min)},
+                                      {"final", number(f.final_value)},
+                                      {"steady_amplitude", optional_number(f.amplitude)},
+                                      {"steady_phase_deg", f.phase ? number(*f.phase * kRadToDeg) : nlohmann::json(nullptr)},
+                                      {"steady_dc", optional_number(f.dc)},
+                                      {"settling_time", optional_number(f.settling_time)}};
+  }
+  j["observables"] = obs;
+  auto totals = nlohmann::json::object();
+  for (const auto& t : report.totals)
+    totals[c.element(t.element).name] = {{"energy", number(t.energy)}, {"i2t", number(t.i2t)}};
+  j["energy"] = totals;
+  auto ratings = nlohmann::json::array();
+  for (const auto& r : report.ratings)
+    ratings.push_back({{"element", c.element(r.element).name},
+                       {"quantity", r.quantity},
+                       {"rated", number(r.rated)},
+                       {"actual", number(r.actual)},
+                       {"used_percent", number(r.used_percent)},
+                       {"exceeded", r.exceeded},
+                       {"worst_case", r.worst_case}});
+  j["ratings"] = ratings;
+  if (report.verification) {
+    const auto& v = *report.verification;
+    j["verification"] = {{"method", v.method},
+                         {"max_rel_error", number(v.max_rel_error)},
+                         {"rtol", number(v.rtol)},
+                         {"passed", v.passed},
+                         {"steps", v.steps},
+                         {"rhs_evals", v.rhs_evals}};
+  } else {
+    j["verification"] = nullptr;
+  }
+  j["warnings"] = report.warnings;
+  return j.dump(2) + "\n";
+}
+
+namespace {
+
+// Sample times FROM + k·resolution up to TO (a hair of slack so that TO itself is included
+// when the window is a whole number of steps).
+std::vector<double> sample_times(const Solution& sol) {
+  const Window& w = sol.window();
+  double dt = sol.resolution();
+  auto n = static_cast<std::size_t>(std::floor((w.to - w.from) / dt * (1.0 + 1e-12) + 1e-9));
+  std::vector<double> t(n + 1);
+  for (std::size_t k = 0; k <= n; ++k) t[k] = w.from + static_cast<double>(k) * dt;
+  return t;
+}
+
+// Values of each observable at each time, from the closed form (right-continuous at events).
+std::vector<std::vector<double>> sample_values(const Solution& sol, const std::vector<double>& times) {
+  std::vector<std::vector<double>> values;
+  for (const auto& obs : sol.observables()) {
+    std::vector<Piece> pieces = sol.pieces(obs);
+    std::vector<double> v(times.size());
+    std::size_t seg = 0;
+    for (std::size_t k = 0; k < times.size(); ++k) {
+      while (seg + 1 < pieces.size() && times[k] >= pieces[seg + 1].t0()) ++seg;
+      v[k] = pieces[seg].value(times[k]);
+    }
+    values.push_back(std::move(v));
+  }
+  return values;
+}
+
+}  // namespace
+
+std::string waveform_csv(const Solution& sol) {
+  auto times = sample_times(sol);
+  auto values = sample_values(sol, times);
+  std::string out = "t";
+  for (const auto& obs : sol.observables()) out += "," + obs.text;
+  out += "\n";
+  for (std::size_t k = 0; k < times.size(); ++k) {
+    out += format_exact(times[k]);
+    for (const auto& v : values) {
+      out += ',';
+      out += format_exact(std::isfinite(v[k]) ? v[k] : 0.0);
+    }
+    out += '\n';
+  }
+  return out;
+}
+
+PlotData plot_data(const Solution& sol) {
+  PlotData d;
+  d.title = sol.circuit().title().empty() ? sol.circuit().source().path() : sol.circuit().title();
+  auto times = sample_times(sol);
+  auto values = sample_values(sol, times);
+  for (std::size_t i = 0; i < sol.observables().size(); ++i) {
+    const auto& obs = sol.observables()[i];
+    d.series.push_back({obs.text, std::string(obs.dimension() == Dimension::voltage   ? "V"
+                                              : obs.dimension() == Dimension::current ? "A"
+                                                                                       : "W"),
+                        times, values[i]});
+  }
+  for (const auto& s : sol.segments()) {
+    if (s.changes.empty() || s.from <= sol.window().from) continue;
+    d.events.push_back(s.from);
+    std::string label;
+    for (const auto& ch : s.changes) label += (label.empty() ? "" : ", ") + ch;
+    d.event_labels.push_back(label);
+  }
+  return d;
+}
+
+void write_output(const std::string& path, std::string_view content, std::ostream& out) {
+  if (path == "-") {
+    out << content;
+    return;
+  }
+  std::filesystem::path target(path);
+  std::filesystem::path temp = target;
+  temp += fmt::format(".tmp{}", static_cast<unsigned long>(std::hash<std::string>{}(path) & 0xffffff));
+  {
+    std::ofstream f(temp, std::ios::binary | std::ios::trunc);
+    if (!f) throw argument_error("", fmt::format("cannot write '{}': {}", path, std::strerror(errno)));
+    f.write(content.data(), static_cast<std::streamsize>(content.size()));
+    f.flush();
+    if (!f) {
+      std::error_code ec;
+      std::filesystem::remove(temp, ec);
+      throw argument_error("", fmt::format("cannot write '{}': {}", path, std::strerror(errno)));
+    }
+  }
+  std::error_code ec;
+  std::filesystem::rename(temp, target, ec);
+  if (ec) {
+    std::filesystem::remove(temp, ec);
+    throw argument_error("", fmt::format("cannot write '{}': {}", path, ec.message()));
+  }
+}
+
+PortEquivalent port_equivalent(const Solution& sol, std::optional<std::pair<NodeId, NodeId>> port, double at) {
+  const Circuit& c = sol.circuit();
+  PortEquivalent eq;
+  eq.at = at;
+  eq.segment = &sol.segment_at(at);
+  const Segment& seg = *eq.segment;
+  if (!port) {
+    if (sol.storage() == kNone)
+      throw argument_error("equiv", "the circuit has no capacitor or inductor; name a port with --port A,B");
+    const Element& st = c.element(sol.storage());
+    eq.port = st.name;
+    eq.node_a = st.pos;
+    eq.node_b = st.neg;
+    eq.rth = seg.equivalent.rth;
+    eq.voc = seg.voc;
+    eq.isc = seg.isc;
+    eq.voc_defined = seg.voc_defined;
+    eq.isc_defined = seg.isc_defined;
+    eq.state_value = seg.state.value(at);
+    return eq;
+  }
+  auto [a, b] = *port;
+  eq.at_storage = false;
+  eq.node_a = a;
+  eq.node_b = b;
+  eq.port = c.nodes()[a] + "," + c.nodes()[b];
+  if (a == b) throw argument_error("--port", fmt::format("the port names node '{}' twice; give two different nodes", c.nodes()[a]));
+  const NodalSystem& plain = sol.network(seg).system();
+  for (NodeId n : {a, b})
+    if (plain.node_floating(n))
+      throw argument_error("--port", fmt::format("node '{}' is not connected to the rest of the network in segment {} "
+                                                 "(from {}); choose a connected node",
+                                                 c.nodes()[n], seg.number, format_si(seg.from, "s", 4)));
+  eq.state_value = seg.state.value(at);
+  BuildOptions options;
+  options.mode = seg.mode;
+  options.test_port = port;
+  ReducedNetwork tested(c, seg.positions, options);
+  bool shorted = false;
+  for (const auto& p : tested.system().problems()) shorted |= p.kind == TopologyProblem::Kind::test_port_loop;
+  if (shorted) {
+    // An ideal branch already joins the two nodes: R_th = 0, v_oc is that branch's voltage.
+    LinearForm f = plain.node_voltage(a);
+    for (auto [x, k] : plain.node_voltage(b).unknowns) f.unknowns.push_back({x, -k});
+    std::vector<double> k = sol.network(seg).coefficients(f);
+    eq.rth = 0.0;
+    eq.voc = sol.drive_of(k, seg);
+    eq.state_coefficient = k[0];
+    eq.isc_defined = false;
+    return eq;
+  }
+  if (tested.rcond() < kSingularRcond)
+    throw NumericError(fmt::format("the equations with a test source at {} are singular (reciprocal condition {:.1e})",
+                                   eq.port, tested.rcond()));
+  std::vector<double> k = tested.coefficients(tested.system().test_port_current());
+  const std::uint32_t t = tested.system().test_port_input();
+  double ktt = k[t];
+  k.resize(t);  // the state and the sources; drop the test input
+  double g_scale = 0.0;
+  for (const auto& e : c.elements())
+    if (e.kind == ElementKind::resistor) g_scale = std::max(g_scale, 1.0 / e.value);
+  if (std::fabs(ktt) <= 1e-13 * g_scale) ktt = 0.0;
+  if (ktt == 0.0) {
+    eq.rth = kInfinity;
+    bool driven = false;
+    for (double v : k) driven |= v != 0.0;
+    if (driven) {
+      // Current sources push into an open port: its voltage is unbounded, a short's current is not.
+      eq.voc_defined = false;
+      eq.isc = sol.drive_of(k, seg);
+      return eq;
+    }
+    LinearForm f = plain.node_voltage(a);
+    for (auto [x, kk] : plain.node_voltage(b).unknowns) f.unknowns.push_back({x, -kk});
+    std::vector<double> kv = sol.network(seg).coefficients(f);
+    eq.voc = sol.drive_of(kv, seg);
+    eq.state_coefficient = kv[0];
+    return eq;  // i_sc = 0
+  }
+  eq.isc = sol.drive_of(k, seg);
+  eq.rth = -1.0 / ktt;
+  std::vector<double> kv = k;
+  for (double& v : kv) v = -v / ktt;
+  eq.voc = sol.drive_of(kv, seg);
+  eq.state_coefficient = kv[0];
+  return eq;
+}
+
+std::string equivalent_json(const PortEquivalent& eq, const Solution& sol) {
+  nlohmann::json j;
+  j["port"] = eq.port;
+  j["at"] = number(eq.at);
+  j["segment"] = eq.segment->number;
+  j["rth"] = number(eq.rth);
+  j["gth"] = eq.rth == 0.0 ? nlohmann::json(nullptr) : number(1.0 / eq.rth);
+  j["vth_dc"] = eq.voc_defined ? number(eq.voc.dc) : nlohmann::json(nullptr);
+  j["vth_phasors"] = eq.voc_defined ? phasors_json(eq.voc) : nlohmann::json(nullptr);
+  j["isc_dc"] = eq.isc_defined ? number(eq.isc.dc) : nlohmann::json(nullptr);
+  j["isc_phasors"] = eq.isc_defined ? phasors_json(eq.isc) : nlohmann::json(nullptr);
+  if (!eq.at_storage) {
+    j["vth_state_coefficient"] = number(eq.state_coefficient);
+    j["state_value"] = number(eq.state_value);
+  }
+  j["tau"] = eq.at_storage ? number(eq.segment->tau) : nlohmann::json(nullptr);
+  (void)sol;
+  return j.dump(2) + "\n";
+}
+
+}  // namespace netfold
