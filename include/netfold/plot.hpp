@@ -1,0 +1,47 @@
+#pragma once
+/// \file plot.hpp
+/// The SVG plot of watched waveforms (`netfold solve FILE --svg OUT.svg`): one panel per
+/// unit, stacked vertically, sharing a time axis, with the switching events marked.
+///
+/// Example:
+/// \code
+///   netfold::PlotData d;
+///   d.title = "valve coil";
+///   d.series.push_back({"coil_l.i", "A", {0.0, 0.01, 0.02}, {0.0, 0.6, 0.8}});
+///   d.events = {0.0};
+///   d.event_labels = {"K1 closes"};
+///   std::string svg = netfold::render_svg_plot(d);  // starts with "<?xml version=\"1.0\""
+/// \endcode
+
+#include <string>
+#include <vector>
+
+namespace netfold {
+
+/// One waveform to draw.
+struct PlotSeries {
+  std::string name;       ///< legend text, e.g. "coil_l.i", "@a - @b"
+  std::string unit;       ///< SI unit symbol of the values: "V", "A" or "W"; one panel per distinct unit
+  std::vector<double> t;  ///< s, increasing
+  std::vector<double> v;  ///< values in SI base units, same length as t
+};
+
+/// What to draw.
+struct PlotData {
+  std::string title;                      ///< may be empty
+  std::vector<PlotSeries> series;         ///< drawn in this order; panels in the order units first appear
+  std::vector<double> events;             ///< switching instants (s), dashed vertical lines in every panel
+  std::vector<std::string> event_labels;  ///< optional, same length as events (e.g. "K1 closes"), may be empty
+};
+
+/// Renders an SVG 1.1 document (UTF-8), 900 px wide, one panel per unit stacked vertically.
+///
+/// The time axis is labelled "t (s)", "t (ms)", "t (µs)" or "t (ns)" as fits the time span of
+/// the data; y ticks are 1, 2 or 5 × 10^k steps with SI-prefixed labels ("-500 mV", "1.5 kV").
+/// Series longer than the plot is wide are reduced to the first, minimum, maximum and last
+/// sample of each pixel column, so every peak is kept. Non-finite samples are skipped (the
+/// line breaks there); events outside the data's time span are not drawn. The output depends
+/// only on `data`: same input, same bytes.
+std::string render_svg_plot(const PlotData& data);
+
+}  // namespace netfold

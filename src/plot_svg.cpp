@@ -1,0 +1,516 @@
+#include "netfold/plot.hpp"
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <cstddef>
+#include <iterator>
+#include <string_view>
+#include <utility>
+
+#include <fmt/format.h>
+
+#include "netfold/units.hpp"
+
+namespace netfold {
+namespace {
+
+// Page geometry, px. The plot area spans the page width less room for the y tick labels.
+constexpr double kWidth = 900.0;
+constexpr double kPlotLeft = 88.0;
+constexpr double kPlotRight = 880.0;
+constexpr double kPlotHeight = 180.0;
+constexpr double kTopMargin = 12.0;
+constexpr double kTitleBand = 34.0;
+constexpr double kLegendRow = 18.0;
+constexpr double kEventRow = 13.0;
+constexpr double kXTickBand = 20.0;
+constexpr double kPanelGap = 18.0;
+constexpr double kAxisLabelBand = 24.0;
+constexpr double kFontSize = 12.0;
+constexpr double kSmallFontSize = 10.0;
+constexpr double kTitleFontSize = 16.0;
+constexpr int kMaxEventRows = 4;
+constexpr int kMinTicks = 4;
+constexpr int kMaxTicks = 8;
+constexpr double kHuge = 1e300;  // axis ranges are clamped to ±kHuge
+
+// Okabe–Ito colours (distinguishable with the common colour-vision deficiencies; yellow left
+// out for being unreadable on white) plus a wine red. Colours repeat after eight series.
+constexpr std::array<std::string_view, 8> kPalette{"#0072b2", "#d55e00", "#009e73", "#cc79a7",
+                                                   "#e69f00", "#56b4e9", "#000000", "#882255"};
+
+template <typename... Args>
+void put(std::string& out, fmt::format_string<Args...> format, Args&&... args) {
+  fmt::format_to(std::back_inserter(out), format, std::forward<Args>(args)...);
+}
+
+// Length of the valid UTF-8 sequence at s[i], or 0. XML parsers reject malformed UTF-8, so the
+// escaper must know where sequences end; overlong forms and surrogates count as malformed.
+std::size_t utf8_sequence_length(std::string_view s, std::size_t i) {
+  auto byte = [&](std::size_t k) { return static_cast<unsigned char>(s[k]); };
+  unsigned char b0 = byte(i);
+  if (b0 < 0x80) return 1;
+  std::size_t len = 0;
+  unsigned char lo = 0x80, hi = 0xBF;
+  if (b0 >= 0xC2 && b0 <= 0xDF) {
+    len = 2;
+  } else if (b0 >= 0xE0 && b0 <= 0xEF) {
+    len = 3;
+    if (b0 == 0xE0) lo = 0xA0;
+    if (b0 == 0xED) hi = 0x9F;
+  } else if (b0 >= 0xF0 && b0 <= 0xF4) {
+    len = 4;
+    if (b0 == 0xF0) lo = 0x90;
+    if (b0 == 0xF4) hi = 0x8F;
+  } else {
+    return 0;
+  }
+  if (i + len > s.size()) return 0;
+  if (byte(i + 1) < lo || byte(i + 1) > hi) return 0;
+  for (std::size_t k = 2; k < len; ++k)
+    if (byte(i + k) < 0x80 || byte(i + k) > 0xBF) return 0;
+  // U+FFFE and U+FFFF are not XML characters.
+  if (len == 3 && b0 == 0xEF && byte(i + 1) == 0xBF && byte(i + 2) >= 0xBE) return 0;
+  return len;
+}
+
+// Text content or attribute value. Control characters (not allowed in XML 1.0) become '?',
+// malformed UTF-8 becomes U+FFFD, so that any name still yields a well-formed document.
+std::string escape_xml(std::string_view s) {
+  std::string out;
+  out.reserve(s.size());
+  for (std::size_t i = 0; i < s.size();) {
+    char c = s[i];
+    switch (c) {
+      case '&': out += "&amp;"; ++i; continue;
+      case '<': out += "&lt;"; ++i; continue;
+      case '>': out += "&gt;"; ++i; continue;
+      case '"': out += "&quot;"; ++i; continue;
+      case '\'': out += "&apos;"; ++i; continue;
+      default: break;
+    }
+    auto b = static_cast<unsigned char>(c);
+    if (b < 0x20) {
+      out += (c == '\t') ? ' ' : '?';  // newlines would not render in an SVG text either
+      ++i;
+      continue;
+    }
+    std::size_t len = utf8_sequence_length(s, i);
+    if (len == 0) {
+      out += "\xEF\xBF\xBD";
+      ++i;
+      continue;
+    }
+    out.append(s.substr(i, len));
+    i += len;
+  }
+  return out;
+}
+
+// Rough rendered width of a sans-serif string; used only to lay out legends and labels.
+double text_width(std::string_view s, double font_size) {
+  std::size_t code_points = 0;
+  for (char c : s)
+    if ((static_cast<unsigned char>(c) & 0xC0) != 0x80) ++code_points;
+  return static_cast<double>(code_points) * font_size * 0.6;
+}
+
+// Nice ticks: multiples of step = mantissa × 10^exponent, mantissa ∈ {1, 2, 5}.
+struct Ticks {
+  double lo = 0.0, hi = 1.0;  ///< axis range
+  double step = 1.0;
+  int exponent = 0;           ///< of the step
+  long first = 0, last = 0;   ///< tick i is at i × step
+
+  double at(long i) const { return static_cast<double>(i) * step; }
+  int count() const { return static_cast<int>(last - first + 1); }
+};
+
+double step_value(int mantissa, int exponent) {
+  // Dividing by an exact power of ten keeps 0.2, 0.05 ... as close as a double can be.
+  return exponent >= 0 ? mantissa * std::pow(10.0, exponent) : mantissa / std::pow(10.0, -exponent);
+}
+
+// `extend` widens [lo, hi] out to whole steps (the value axes); otherwise the range stays put
+// and only the multiples inside it are ticks (the time axis starts where the data starts).
+// Takes the finest step with kMinTicks..kMaxTicks ticks, else the finest with at most kMaxTicks.
+Ticks choose_ticks(double lo, double hi, bool extend) {
+  constexpr double kSlack = 1e-9;  // so that 0.30000000000000004 still counts as 3 × 0.1
+  const int base = static_cast<int>(std::floor(std::log10(hi - lo))) - 1;
+  constexpr std::array<int, 3> kMantissas{1, 2, 5};
+  Ticks fallback;
+  bool have_fallback = false;
+  for (int exponent = base; exponent <= base + 3; ++exponent) {
+    for (int mantissa : kMantissas) {
+      Ticks t;
+      t.step = step_value(mantissa, exponent);
+      t.exponent = exponent;
+      if (extend) {
+        t.first = static_cast<long>(std::floor(lo / t.step + kSlack));
+        t.last = static_cast<long>(std::ceil(hi / t.step - kSlack));
+        t.lo = t.at(t.first);
+        t.hi = t.at(t.last);
+      } else {
+        t.first = static_cast<long>(std::ceil(lo / t.step - kSlack));
+        t.last = static_cast<long>(std::floor(hi / t.step + kSlack));
+        t.lo = lo;
+        t.hi = hi;
+      }
+      int n = t.count();
+      if (n > kMaxTicks) continue;
+      if (n >= kMinTicks) return t;
+      if (!have_fallback) {
+        fallback = t;
+        have_fallback = true;
+      }
+    }
+  }
+  return fallback;
+}
+
+// Value-axis range of a panel. A constant (or all-zero) panel still needs a non-empty range:
+// draw it from zero to the constant, or ±1 around zero.
+std::pair<double, double> value_range(double lo, double hi) {
+  if (!(lo <= hi)) return {-1.0, 1.0};  // no finite sample at all
+  // Finite values near ±1.8e308 would overflow hi − lo to infinity.
+  lo = std::clamp(lo, -kHuge, kHuge);
+  hi = std::clamp(hi, -kHuge, kHuge);
+  double scale = std::max(std::fabs(lo), std::fabs(hi));
+  if (hi - lo <= 1e-9 * scale || hi - lo < 1e-300) {
+    lo = std::min(lo, 0.0);
+    hi = std::max(hi, 0.0);
+    if (hi - lo < 1e-300) return {-1.0, 1.0};
+  }
+  return {lo, hi};
+}
+
+struct TimeUnit {
+  double scale;          ///< seconds per display unit
+  std::string_view name;
+};
+
+// By span, so the tick labels have few digits: 84 ms → ms, 500 µs → µs, 3 s → s.
+TimeUnit choose_time_unit(double span) {
+  if (span >= 1.0) return {1.0, "s"};
+  if (span >= 1e-3) return {1e-3, "ms"};
+  if (span >= 1e-6) return {1e-6, "µs"};
+  return {1e-9, "ns"};
+}
+
+std::string time_tick_label(const Ticks& ticks, long i) {
+  if (i == 0) return "0";
+  int decimals = std::max(0, -ticks.exponent);
+  return fmt::format("{:.{}f}", ticks.at(i), decimals);
+}
+
+std::string value_tick_label(const Ticks& ticks, long i, std::string_view unit) {
+  if (i == 0) return "0";
+  // Ticks are whole multiples of 10^exponent, so this many significant digits shows each
+  // tick exactly and no two ticks print alike.
+  double largest = std::max(std::fabs(ticks.lo), std::fabs(ticks.hi));
+  int digits = static_cast<int>(std::floor(std::log10(largest))) - ticks.exponent + 1;
+  return format_si(ticks.at(i), unit, std::clamp(digits, 1, 6));
+}
+
+struct Panel {
+  std::string unit;
+  std::vector<std::size_t> series;  ///< indices into PlotData::series
+  double data_lo = 1.0, data_hi = -1.0;
+  Ticks y;
+  int legend_rows = 1;
+  double top = 0.0;       ///< of the panel (legend)
+  double plot_top = 0.0;  ///< of the plot area
+};
+
+std::size_t sample_count(const PlotSeries& s) { return std::min(s.t.size(), s.v.size()); }
+
+struct Layout {
+  double t0 = 0.0, t1 = 1.0;
+  TimeUnit time_unit{1.0, "s"};
+  Ticks x;
+  std::vector<Panel> panels;
+  std::vector<double> events;       ///< inside [t0, t1], in input order
+  std::vector<std::string> labels;  ///< per drawn event, may be empty strings
+  std::vector<double> label_left;   ///< px
+  std::vector<int> label_row;
+  int event_rows = 0;
+  double height = 0.0;
+
+  double x_of(double t) const { return kPlotLeft + (t - t0) / (t1 - t0) * (kPlotRight - kPlotLeft); }
+};
+
+double y_of(const Panel& p, double v) {
+  double y = p.plot_top + kPlotHeight - (v - p.y.lo) / (p.y.hi - p.y.lo) * kPlotHeight;
+  return std::clamp(y, p.plot_top, p.plot_top + kPlotHeight);
+}
+
+void find_time_range(const PlotData& data, Layout& L) {
+  double lo = 0.0, hi = -1.0;
+  auto widen = [&](double t) {
+    if (!std::isfinite(t)) return;
+    if (lo > hi) {
+      lo = hi = t;
+    } else {
+      lo = std::min(lo, t);
+      hi = std::max(hi, t);
+    }
+  };
+  for (const PlotSeries& s : data.series)
+    for (std::size_t i = 0, n = sample_count(s); i < n; ++i)
+      if (std::isfinite(s.v[i])) widen(s.t[i]);
+  if (lo > hi)
+    for (double e : data.events) widen(e);  // nothing to draw but the events
+  if (lo > hi) {
+    lo = 0.0;
+    hi = 1.0;
+  }
+  lo = std::clamp(lo, -kHuge, kHuge);
+  hi = std::clamp(hi, -kHuge, kHuge);
+  if (!(hi - lo > 1e-9 * std::max(std::fabs(lo), std::fabs(hi)) && hi - lo > 1e-300)) {
+    double pad = lo != 0.0 ? std::fabs(lo) * 0.05 : 1e-3;
+    lo -= pad;
+    hi += pad;
+  }
+  L.t0 = lo;
+  L.t1 = hi;
+  L.time_unit = choose_time_unit(hi - lo);
+  L.x = choose_ticks(lo / L.time_unit.scale, hi / L.time_unit.scale, false);
+}
+
+void group_panels(const PlotData& data, Layout& L) {
+  for (std::size_t k = 0; k < data.series.size(); ++k) {
+    const PlotSeries& s = data.series[k];
+    auto it = std::find_if(L.panels.begin(), L.panels.end(), [&](const Panel& p) { return p.unit == s.unit; });
+    if (it == L.panels.end()) {
+      L.panels.push_back(Panel{});
+      L.panels.back().unit = s.unit;
+      it = L.panels.end() - 1;
+    }
+    it->series.push_back(k);
+    for (std::size_t i = 0, n = sample_count(s); i < n; ++i) {
+      double v = s.v[i];
+      if (!std::isfinite(v) || !std::isfinite(s.t[i])) continue;
+      if (it->data_lo > it->data_hi) {
+        it->data_lo = it->data_hi = v;
+      } else {
+        it->data_lo = std::min(it->data_lo, v);
+        it->data_hi = std::max(it->data_hi, v);
+      }
+    }
+  }
+  for (Panel& p : L.panels) {
+    auto [lo, hi] = value_range(p.data_lo, p.data_hi);
+    p.y = choose_ticks(lo, hi, true);
+  }
+}
+
+double legend_item_width(const std::string& name) { return 14.0 + 5.0 + text_width(name, kFontSize) + 18.0; }
+
+// Legend entries flow left to right over the plot width and wrap onto further rows.
+template <typename Visit>
+int lay_out_legend(const PlotData& data, const Panel& p, Visit&& visit) {
+  double x = kPlotLeft;
+  int row = 0;
+  for (std::size_t k : p.series) {
+    double w = legend_item_width(data.series[k].name);
+    if (x > kPlotLeft && x + w > kPlotRight) {
+      x = kPlotLeft;
+      ++row;
+    }
+    visit(k, x, row);
+    x += w;
+  }
+  return row + 1;
+}
+
+// Labels go in rows above the first panel; each takes the lowest row where it does not
+// overlap a label already placed, so close events stay readable. Placed left to right,
+// whatever the order of `events`.
+void place_event_labels(const PlotData& data, Layout& L) {
+  for (std::size_t k = 0; k < data.events.size(); ++k) {
+    double e = data.events[k];
+    if (!std::isfinite(e) || e < L.t0 || e > L.t1) continue;
+    L.events.push_back(e);
+    L.labels.push_back(k < data.event_labels.size() ? data.event_labels[k] : std::string());
+  }
+  const std::size_t n = L.events.size();
+  L.label_left.assign(n, 0.0);
+  L.label_row.assign(n, -1);
+  std::vector<double> width(n, 0.0);
+  std::vector<std::size_t> order;
+  for (std::size_t k = 0; k < n; ++k) {
+    if (L.labels[k].empty()) continue;
+    width[k] = text_width(L.labels[k], kSmallFontSize);
+    // Beside its line, to the right; to the left where it would run off the page.
+    double x = L.x_of(L.events[k]);
+    L.label_left[k] = x + 3.0 + width[k] <= kWidth - 4.0 ? x + 3.0 : std::max(4.0, x - 3.0 - width[k]);
+    order.push_back(k);
+  }
+  std::stable_sort(order.begin(), order.end(),
+                   [&](std::size_t a, std::size_t b) { return L.label_left[a] < L.label_left[b]; });
+  std::array<double, kMaxEventRows> row_end{};
+  row_end.fill(-1e300);
+  for (std::size_t k : order) {
+    int row = -1;
+    for (int r = 0; r < kMaxEventRows; ++r) {
+      if (row_end[static_cast<std::size_t>(r)] + 4.0 <= L.label_left[k]) {
+        row = r;
+        break;
+      }
+    }
+    if (row < 0)  // every row is taken here: overlap where the overlap is least
+      row = static_cast<int>(std::min_element(row_end.begin(), row_end.end()) - row_end.begin());
+    row_end[static_cast<std::size_t>(row)] = L.label_left[k] + width[k];
+    L.label_row[k] = row;
+    L.event_rows = std::max(L.event_rows, row + 1);
+  }
+}
+
+void stack_panels(const PlotData& data, Layout& L) {
+  double y = kTopMargin + (data.title.empty() ? 0.0 : kTitleBand);
+  for (std::size_t k = 0; k < L.panels.size(); ++k) {
+    Panel& p = L.panels[k];
+    p.legend_rows = lay_out_legend(data, p, [](std::size_t, double, int) {});
+    p.top = y;
+    p.plot_top = y + p.legend_rows * kLegendRow + 4.0 + (k == 0 ? L.event_rows * kEventRow : 0.0);
+    y = p.plot_top + kPlotHeight + kXTickBand + kPanelGap;
+  }
+  L.height = std::ceil(y - kPanelGap + kAxisLabelBand);
+  if (L.panels.empty()) L.height = std::ceil(y + 40.0);
+}
+
+// One series as a path. Samples are bucketed by pixel column; each bucket contributes its
+// first, lowest, highest and last sample in time order, which keeps every peak and the
+// joins between columns while bounding the output at about four points per column.
+void draw_trace(std::string& out, const Layout& L, const Panel& p, const PlotSeries& s, std::string_view colour) {
+  const double columns = kPlotRight - kPlotLeft;
+  std::string d;
+  bool pen_up = true;
+  bool open = false;
+  long column = 0;
+  std::size_t first = 0, last = 0, low = 0, high = 0;
+  auto flush = [&] {
+    if (!open) return;
+    std::array<std::size_t, 4> pick{first, low, high, last};
+    std::sort(pick.begin(), pick.end());
+    for (std::size_t j = 0; j < pick.size(); ++j) {
+      if (j > 0 && pick[j] == pick[j - 1]) continue;
+      std::size_t i = pick[j];
+      put(d, "{}{:.2f},{:.2f}", pen_up ? 'M' : 'L', L.x_of(s.t[i]), y_of(p, s.v[i]));
+      pen_up = false;
+    }
+    open = false;
+  };
+  for (std::size_t i = 0, n = sample_count(s); i < n; ++i) {
+    double t = s.t[i], v = s.v[i];
+    if (!std::isfinite(t) || !std::isfinite(v)) {
+      flush();
+      pen_up = true;  // a gap in the data is a gap in the line
+      continue;
+    }
+    long c = std::clamp(static_cast<long>(std::floor((t - L.t0) / (L.t1 - L.t0) * columns)), 0L,
+                        static_cast<long>(columns) - 1);
+    if (open && c != column) flush();
+    if (!open) {
+      open = true;
+      column = c;
+      first = low = high = i;
+    }
+    last = i;
+    if (v < s.v[low]) low = i;
+    if (v > s.v[high]) high = i;
+  }
+  flush();
+  if (d.empty()) return;
+  put(out, "<path class=\"trace\" d=\"{}\" fill=\"none\" stroke=\"{}\" stroke-width=\"1.5\" "
+           "stroke-linejoin=\"round\" stroke-linecap=\"round\"/>\n",
+      d, colour);
+}
+
+void draw_panel(std::string& out, const PlotData& data, const Layout& L, std::size_t index) {
+  const Panel& p = L.panels[index];
+  const double bottom = p.plot_top + kPlotHeight;
+  put(out, "<g class=\"panel\" id=\"panel-{}\">\n", index + 1);
+
+  put(out, "<g class=\"legend\">\n");
+  lay_out_legend(data, p, [&](std::size_t k, double x, int row) {
+    double y = p.top + row * kLegendRow;
+    put(out,
+        "<g class=\"legend-item\"><rect class=\"swatch\" x=\"{:.2f}\" y=\"{:.2f}\" width=\"14\" height=\"10\" "
+        "fill=\"{}\"/><text x=\"{:.2f}\" y=\"{:.2f}\">{}</text></g>\n",
+        x, y + 3.0, kPalette[k % kPalette.size()], x + 19.0, y + 12.0, escape_xml(data.series[k].name));
+  });
+  put(out, "</g>\n");
+
+  put(out, "<rect class=\"plot-area\" x=\"{:.2f}\" y=\"{:.2f}\" width=\"{:.2f}\" height=\"{:.2f}\" fill=\"#ffffff\"/>\n",
+      kPlotLeft, p.plot_top, kPlotRight - kPlotLeft, kPlotHeight);
+
+  for (long i = p.y.first; i <= p.y.last; ++i) {
+    double y = y_of(p, p.y.at(i));
+    put(out, "<line class=\"grid\" x1=\"{:.2f}\" y1=\"{:.2f}\" x2=\"{:.2f}\" y2=\"{:.2f}\" stroke=\"{}\" stroke-width=\"1\"/>\n",
+        kPlotLeft, y, kPlotRight, y, i == 0 ? "#b0b0b0" : "#e4e4e4");
+    put(out, "<text class=\"ytick\" x=\"{:.2f}\" y=\"{:.2f}\" dy=\"0.35em\" text-anchor=\"end\">{}</text>\n",
+        kPlotLeft - 6.0, y, escape_xml(value_tick_label(p.y, i, p.unit)));
+  }
+  for (long i = L.x.first; i <= L.x.last; ++i) {
+    double x = L.x_of(L.x.at(i) * L.time_unit.scale);
+    put(out, "<line class=\"grid\" x1=\"{:.2f}\" y1=\"{:.2f}\" x2=\"{:.2f}\" y2=\"{:.2f}\" stroke=\"#e4e4e4\" stroke-width=\"1\"/>\n",
+        x, p.plot_top, x, bottom);
+    put(out, "<text class=\"xtick\" x=\"{:.2f}\" y=\"{:.2f}\" text-anchor=\"middle\">{}</text>\n", x, bottom + 15.0,
+        time_tick_label(L.x, i));
+  }
+  double mid = p.plot_top + kPlotHeight / 2.0;
+  put(out, "<text class=\"unit-label\" x=\"18\" y=\"{:.2f}\" text-anchor=\"middle\" transform=\"rotate(-90 18 {:.2f})\">{}</text>\n",
+      mid, mid, escape_xml(p.unit));
+
+  for (std::size_t k = 0; k < L.events.size(); ++k) {
+    double x = L.x_of(L.events[k]);
+    put(out, "<line class=\"event\" x1=\"{:.2f}\" y1=\"{:.2f}\" x2=\"{:.2f}\" y2=\"{:.2f}\" stroke=\"#555555\" "
+             "stroke-width=\"1\" stroke-dasharray=\"5,4\"/>\n",
+        x, p.plot_top, x, bottom);
+    if (index == 0 && L.label_row[k] >= 0) {
+      put(out, "<text class=\"event-label\" x=\"{:.2f}\" y=\"{:.2f}\" font-size=\"{}\" fill=\"#333333\">{}</text>\n",
+          L.label_left[k], p.plot_top - 4.0 - L.label_row[k] * kEventRow, kSmallFontSize, escape_xml(L.labels[k]));
+    }
+  }
+
+  for (std::size_t k : p.series) draw_trace(out, L, p, data.series[k], kPalette[k % kPalette.size()]);
+
+  put(out, "<rect class=\"frame\" x=\"{:.2f}\" y=\"{:.2f}\" width=\"{:.2f}\" height=\"{:.2f}\" fill=\"none\" stroke=\"#333333\" stroke-width=\"1\"/>\n",
+      kPlotLeft, p.plot_top, kPlotRight - kPlotLeft, kPlotHeight);
+  put(out, "</g>\n");
+}
+
+}  // namespace
+
+std::string render_svg_plot(const PlotData& data) {
+  Layout L;
+  find_time_range(data, L);
+  group_panels(data, L);
+  place_event_labels(data, L);
+  stack_panels(data, L);
+
+  std::string out;
+  put(out, "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n");
+  put(out, "<svg xmlns=\"http://www.w3.org/2000/svg\" version=\"1.1\" width=\"{0}\" height=\"{1}\" viewBox=\"0 0 {0} {1}\" "
+           "font-family=\"DejaVu Sans, Arial, Helvetica, sans-serif\" font-size=\"{2}\">\n",
+      kWidth, L.height, kFontSize);
+  put(out, "<rect class=\"background\" x=\"0\" y=\"0\" width=\"{}\" height=\"{}\" fill=\"#ffffff\"/>\n", kWidth, L.height);
+  if (!data.title.empty()) {
+    put(out, "<text class=\"title\" x=\"{:.2f}\" y=\"{:.2f}\" text-anchor=\"middle\" font-size=\"{}\" font-weight=\"bold\">{}</text>\n",
+        kWidth / 2.0, kTopMargin + 18.0, kTitleFontSize, escape_xml(data.title));
+  }
+  for (std::size_t k = 0; k < L.panels.size(); ++k) draw_panel(out, data, L, k);
+  if (L.panels.empty()) {
+    put(out, "<text class=\"no-data\" x=\"{:.2f}\" y=\"{:.2f}\" text-anchor=\"middle\">no waveforms to plot</text>\n",
+        kWidth / 2.0, L.height - 20.0);
+  } else {
+    put(out, "<text class=\"axis-label\" x=\"{:.2f}\" y=\"{:.2f}\" text-anchor=\"middle\">t ({})</text>\n",
+        (kPlotLeft + kPlotRight) / 2.0, L.height - 8.0, L.time_unit.name);
+  }
+  put(out, "</svg>\n");
+  return out;
+}
+
+}  // namespace netfold
