@@ -543,6 +543,12 @@ double steady_peak(const Drive& d) {
 
 }  // namespace
 
+Peak find_peak(const Solution& solution, const Observable& obs) {
+  Extremes ex = extremes_over(solution.pieces(obs), solution.window().from, solution.window().to);
+  if (std::fabs(ex.max) >= std::fabs(ex.min)) return {std::fabs(ex.max), ex.t_max};
+  return {std::fabs(ex.min), ex.t_min};
+}
+
 Figures compute_figures(const Solution& solution, const Observable& obs) {
   Figures f;
   const Window& win = solution.window();
@@ -577,6 +583,7 @@ Figures compute_figures(const Solution& solution, const Observable& obs) {
     // Settling: after the last event, y − y_ss = D·e^{a(t − t0)}.
     double d = last.a < 0.0 ? last.transient + last.drift / last.a : (last.a == 0.0 ? 0.0 : last.transient);
     double reference = steady_peak(*f.steady);
+    f.steady_peak = reference;
     if (reference == 0.0) reference = f.peak;
     double threshold = 0.01 * reference;
     if (d == 0.0 || std::fabs(d) <= threshold) {

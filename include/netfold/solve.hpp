@@ -146,7 +146,15 @@ struct Figures {
   std::optional<double> phase;      ///< rad, against a cosine; none for powers
   std::optional<double> dc;         ///< DC part of the steady state; none for powers
   std::optional<double> settling_time;  ///< s after the last event; none when it never settles
+  std::optional<double> steady_peak;    ///< largest |y_ss| over a fundamental period; none for powers
 };
+
+/// Largest |y| of an observable over the window, and when (a cheaper part of Figures).
+struct Peak {
+  double value = 0.0;  ///< peak |y|
+  double time = 0.0;   ///< s
+};
+Peak find_peak(const Solution& solution, const Observable& observable);
 
 /// Figures of an observable, from its closed form.
 Figures compute_figures(const Solution& solution, const Observable& observable);

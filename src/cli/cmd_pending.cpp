@@ -20,16 +20,6 @@ struct PendingArgs {
 };
 }  // namespace
 
-Command register_worst(CLI::App& app) {
-  auto args = std::make_shared<PendingArgs>();
-  CLI::App* sub = app.add_subcommand("worst", "Worst case of every watched quantity over each sweep");
-  sub->add_option("FILE", args->file, "the .nf circuit")->required();
-  sub->add_option("--sweep", args->sweep, "TARGET=FROM..TO, e.g. supply.phase=-180deg..180deg");
-  sub->add_option("--json", args->json, "write the results as JSON ('-' = standard output)");
-  sub->add_option("--csv", args->csv, "write worst peak versus the swept argument");
-  return not_yet("worst");
-}
-
 Command register_verify(CLI::App& app) {
   auto args = std::make_shared<PendingArgs>();
   CLI::App* sub = app.add_subcommand("verify", "Cross-check the closed form against numerical integration (CVODE)");
