@@ -51,7 +51,8 @@ std::string Diagnostic::format() const {
   if (!path.empty() && loc.line > 0) {
     out = fmt::format("{}:{}:{}: error: {}", path, loc.line, loc.col, message);
   } else if (!path.empty()) {
-    out = fmt::format("{}: error: {}", path, message);
+    // About the file as a whole (empty, not text): still FILE:LINE:COL, at its start.
+    out = fmt::format("{}:1:1: error: {}", path, message);
   } else {
     out = fmt::format("netfold: error: {}", message);
   }
