@@ -11,6 +11,7 @@
 #include <limits>
 #include <numbers>
 #include <unordered_map>
+#include <unordered_set>
 
 #include <fmt/format.h>
 
@@ -524,19 +525,17 @@ class FileParser : Reader {
  public:
   explicit FileParser(std::shared_ptr<const SourceText> source)
       : Reader(source->text()), source_(source), builder_(source) {
-    // A rough size hint: typical element lines are 25 to 60 bytes.
-    std::size_t guess = source->text().size() / 40;
-    elements_.reserve(guess);
-    nodes_.reserve(guess);
+    // Every element line holds a ':' (and is a line): a cheap upper estimate of the element
+    // count spares a large file the regrowing of the circuit's tables.
+    std::string_view t = source->text();
+    auto colons = static_cast<std::size_t>(std::count(t.begin(), t.end(), ':'));
+    std::size_t estimate = std::min(colons, source->line_count());
+    builder_.reserve(estimate, estimate + 1);
   }
 
   Circuit run();
 
  private:
-  struct ElementEntry {
-    ElementId id = kNone;  // kNone when the element's line failed
-    std::uint32_t line = 0;
-  };
   struct SenseRef {
     bool given = false;
     bool nodes = false;  // vcvs/vccs: a -> b; ccvs/cccs: element a
@@ -557,15 +556,13 @@ class FileParser : Reader {
    public:
     explicit ParseScope(const FileParser& p) : p_(p) {}
     Lookup element(std::string_view name) const override {
-      auto it = p_.elements_.find(name);
-      if (it == p_.elements_.end()) return {};
-      return {it->second.id, it->second.id == kNone};
+      if (auto id = p_.builder_.find_element(name)) return {*id, false};
+      return {kNone, p_.broken_elements_.count(name) > 0};
     }
     const Element& element_at(ElementId id) const override { return p_.builder_.elements().at(id); }
     Lookup node(std::string_view name) const override {
-      auto it = p_.nodes_.find(name);
-      if (it == p_.nodes_.end()) return {};
-      return {it->second, it->second == kNone};
+      if (auto id = p_.builder_.find_node(name)) return {*id, false};
+      return {kNone, p_.broken_nodes_.count(name) > 0};
     }
     std::string_view reference() const override { return p_.ground_name_; }
 
@@ -612,8 +609,10 @@ class FileParser : Reader {
   CircuitBuilder builder_;
   std::vector<StatementError> errors_;
 
-  std::unordered_map<std::string_view, ElementEntry> elements_;
-  std::unordered_map<std::string_view, NodeId> nodes_;  // kNone: seen only on a line that failed
+  // Names are looked up in the builder's own tables; only names met on lines that failed are
+  // kept here (with the line, for duplicates), so that their later uses are not reported again.
+  std::unordered_map<std::string_view, std::uint32_t> broken_elements_;
+  std::unordered_set<std::string_view> broken_nodes_;
   std::size_t element_lines_ = 0;
   bool element_line_failed_ = false;
   bool in_element_ = false;  // the statement being read is an element line
@@ -703,11 +702,13 @@ void FileParser::parse_statement() {
 void FileParser::note_broken_element() {
   element_line_failed_ = true;
   const Token& name = toks_[0];
-  if (detail::is_name(name.text)) elements_.try_emplace(name.text, ElementEntry{kNone, name.loc.line});
+  if (detail::is_name(name.text) && !builder_.find_element(name.text))
+    broken_elements_.try_emplace(name.text, name.loc.line);
   for (std::size_t i = 1; i + 1 < toks_.size(); ++i) {
     if (toks_[i].kind != TokenKind::arrow) continue;
     for (const Token* t : {&toks_[i - 1], &toks_[i + 1]})
-      if (t->kind == TokenKind::word && detail::is_name(t->text)) nodes_.try_emplace(t->text, kNone);
+      if (t->kind == TokenKind::word && detail::is_name(t->text) && !builder_.find_node(t->text))
+        broken_nodes_.insert(t->text);
   }
 }
 
@@ -717,9 +718,7 @@ NodeId FileParser::take_node() {
     fail(t.loc, "an element's nodes are bare names here: write 'a', not '@a'");
   if (t.kind != TokenKind::word || !detail::is_name(t.text)) fail_expected("a node name");
   take();
-  auto [it, inserted] = nodes_.try_emplace(t.text, kNone);
-  if (it->second == kNone) it->second = builder_.node(t.text);
-  return it->second;
+  return builder_.node(t.text);
 }
 
 void FileParser::parse_element() {
@@ -731,11 +730,13 @@ void FileParser::parse_element() {
                                "letters, digits and '_'",
                                shorten(name.text)));
   }
-  auto [entry, inserted] = elements_.try_emplace(name.text, ElementEntry{kNone, name.loc.line});
-  const bool duplicate = !inserted;
-  if (duplicate) {
-    report(name.loc, fmt::format("duplicate element name '{}': the first '{}' is on line {}", name.text, name.text,
-                                 entry->second.line));
+  // A duplicate is found when the element is added, at the end of its line; one whose first
+  // line failed is found here.
+  if (!broken_elements_.empty()) {
+    if (auto it = broken_elements_.find(name.text); it != broken_elements_.end()) {
+      report(name.loc, fmt::format("duplicate element name '{}': the first '{}' is on line {}", name.text, name.text,
+                                   it->second));
+    }
   }
 
   const Token& kind_token = peek();
@@ -812,9 +813,13 @@ void FileParser::parse_element() {
     report(name.loc, fmt::format("{} {} needs '{}'", info->keyword, name.text, list.substr(list.find(", ") + 2)));
   }
 
-  if (duplicate) return;
-  auto id = builder_.add_element(std::move(e));
-  entry->second.id = *id;
+  std::optional<ElementId> id = builder_.add_element(std::move(e));
+  if (!id) {
+    const Element& first_one = builder_.elements().at(*builder_.find_element(name.text));
+    report(name.loc, fmt::format("duplicate element name '{}': the first '{}' is on line {}", name.text, name.text,
+                                 first_one.loc.line));
+    return;
+  }
   if (sense.given) senses_.push_back({*id, sense});
 }
 
@@ -1196,8 +1201,8 @@ void FileParser::resolve_references() {
     return;
   }
   // Whether any element touches the reference node; unknowable when an element line failed.
-  auto ground = nodes_.find(ground_name_);
-  if (!element_line_failed_ && (ground == nodes_.end() || ground->second == kNone)) {
+  // Only element lines create nodes, so a reference node that exists is one an element touches.
+  if (!element_line_failed_ && !builder_.find_node(ground_name_)) {
     if (ground_line_) {
       report(ground_name_loc_, fmt::format("no element connects to the reference node '{}'; connect one, or name "
                                            "another reference with 'ground NODE'",
@@ -1208,7 +1213,7 @@ void FileParser::resolve_references() {
                              ground_name_));
     }
   }
-  if (ground == nodes_.end() || ground->second == kNone) nodes_[ground_name_] = builder_.node(ground_name_);
+  builder_.node(ground_name_);  // so that references to the reference node resolve
 
   ParseScope scope(*this);
   for (const PendingSense& s : senses_) {
@@ -1292,14 +1297,16 @@ class ArgumentReader : Reader {
   std::string_view option_;
 };
 
-}  // namespace
-
-Circuit parse_netlist(std::string_view text, std::string path) {
+Circuit parse_source(std::string text, std::string path) {
   // A byte-order mark says only "UTF-8"; columns start after it.
-  if (text.substr(0, 3) == "\xEF\xBB\xBF") text.remove_prefix(3);
-  auto source = std::make_shared<const SourceText>(std::move(path), std::string(text));
+  if (std::string_view(text).substr(0, 3) == "\xEF\xBB\xBF") text.erase(0, 3);
+  auto source = std::make_shared<const SourceText>(std::move(path), std::move(text));
   return FileParser(source).run();
 }
+
+}  // namespace
+
+Circuit parse_netlist(std::string_view text, std::string path) { return parse_source(std::string(text), std::move(path)); }
 
 Circuit parse_netlist_file(const std::filesystem::path& path) {
   std::string name = path.string();
@@ -1310,14 +1317,18 @@ Circuit parse_netlist_file(const std::filesystem::path& path) {
   };
   std::FILE* f = std::fopen(name.c_str(), "rb");
   if (!f) throw cannot_read(errno);
+  // Read in one piece where the size is known (a regular file), in chunks otherwise (a pipe).
   std::string text;
+  std::error_code size_error;
+  auto size = std::filesystem::file_size(path, size_error);
+  if (!size_error) text.reserve(static_cast<std::size_t>(size));
   std::array<char, 1 << 16> buffer{};
   std::size_t n = 0;
   while ((n = std::fread(buffer.data(), 1, buffer.size(), f)) > 0) text.append(buffer.data(), n);
   int err = std::ferror(f) ? errno : 0;
   std::fclose(f);
   if (err != 0) throw cannot_read(err);
-  return parse_netlist(text, std::move(name));
+  return parse_source(std::move(text), std::move(name));
 }
 
 Observable parse_observable_argument(const Circuit& circuit, std::string_view text, std::string_view option) {

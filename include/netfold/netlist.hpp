@@ -280,6 +280,14 @@ class CircuitBuilder {
   void set_window(Window window) { circuit_.window_ = window; }
   void set_resolution(double dt) { circuit_.resolution_ = dt; }
   void set_golden_tolerance(double rel) { circuit_.golden_tolerance_ = rel; }
+  /// Makes room for about `elements` elements and `nodes` nodes, so that a large file is read
+  /// without regrowing the tables (a hint only; more may be added).
+  void reserve(std::size_t elements, std::size_t nodes) {
+    circuit_.elements_.reserve(elements);
+    circuit_.element_index_.reserve(elements);
+    circuit_.nodes_.reserve(nodes);
+    circuit_.node_index_.reserve(nodes);
+  }
   /// Finishes: a ground named `gnd` is used when set_ground was not called.
   Circuit build() &&;
 
