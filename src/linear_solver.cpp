@@ -2,6 +2,7 @@
 
 #include <cmath>
 
+#include <Eigen/CholmodSupport>
 #include <Eigen/KLUSupport>
 #include <Eigen/LU>
 
@@ -98,12 +99,64 @@ class SparseSolver final : public LinearSolver {
   KluFactor klu_;
 };
 
+// Eigen's CHOLMOD wrapper keeps the factor protected; this exposes CHOLMOD's rough
+// reciprocal condition estimate, min(diag L)²/max(diag L)².
+// Simplicial, not supernodal: with Debian's reference BLAS the supernodal kernels are slower
+// on circuit matrices (measured in bench/README.md).
+class CholmodFactor : public Eigen::CholmodSimplicialLLT<Eigen::SparseMatrix<double>, Eigen::Lower> {
+ public:
+  double factor_rcond() {
+    if (!this->m_cholmodFactor) return 0.0;
+    double r = cholmod_rcond(this->m_cholmodFactor, &this->cholmod());
+    return r * r;
+  }
+};
+
+class CholeskySolver final : public LinearSolver {
+ public:
+  // Symmetric scaling D·G·D (D = powers of two near 1/√diag) keeps G symmetric.
+  explicit CholeskySolver(const Eigen::SparseMatrix<double>& g) : d_(g.rows()) {
+    kind_ = SolverKind::sparse_cholesky;
+    Eigen::VectorXd diag = g.diagonal();
+    for (Eigen::Index i = 0; i < d_.size(); ++i)
+      d_[i] = diag[i] > 0 ? std::ldexp(1.0, -std::ilogb(diag[i]) / 2) : 1.0;
+    a_ = d_.asDiagonal() * g * d_.asDiagonal();
+    a_.makeCompressed();
+    llt_.compute(a_);
+    rcond_ = llt_.info() == Eigen::Success ? llt_.factor_rcond() : 0.0;
+    if (!std::isfinite(rcond_)) rcond_ = 0.0;
+  }
+  Eigen::MatrixXd solve(const Eigen::MatrixXd& rhs) const override {
+    Eigen::MatrixXd b = d_.asDiagonal() * rhs;
+    Eigen::MatrixXd x = const_cast<CholmodFactor&>(llt_).solve(b);
+    return d_.asDiagonal() * x;
+  }
+
+ private:
+  Eigen::VectorXd d_;
+  Eigen::SparseMatrix<double> a_;
+  CholmodFactor llt_;
+};
+
 }  // namespace
 
-std::unique_ptr<LinearSolver> factor_nodal_matrix(const Eigen::SparseMatrix<double>& g) {
-  Equilibration e = equilibrate(g);
-  if (g.rows() <= kDenseLimit) return std::make_unique<DenseSolver>(g, std::move(e));
-  return std::make_unique<SparseSolver>(g, std::move(e));
+const char* solver_kind_name(SolverKind kind) {
+  switch (kind) {
+    case SolverKind::dense_lu: return "dense LU";
+    case SolverKind::sparse_klu: return "KLU";
+    case SolverKind::sparse_cholesky: return "CHOLMOD Cholesky";
+  }
+  return "";
+}
+
+std::unique_ptr<LinearSolver> factor_nodal_matrix(const Eigen::SparseMatrix<double>& g, bool spd) {
+  if (g.rows() <= kDenseLimit) return std::make_unique<DenseSolver>(g, equilibrate(g));
+  if (spd) {
+    auto cholesky = std::make_unique<CholeskySolver>(g);
+    if (cholesky->rcond() > 0.0) return cholesky;
+    // Not positive definite after all (should not happen): the general path decides.
+  }
+  return std::make_unique<SparseSolver>(g, equilibrate(g));
 }
 
 }  // namespace netfold

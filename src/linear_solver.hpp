@@ -1,6 +1,8 @@
 #pragma once
 // Internal: one factorization of a nodal matrix, reused for every right-hand side.
-// Small systems use a dense LU; large ones KLU, which is built for circuit matrices.
+// Small systems use a dense LU; large symmetric positive definite ones (resistor networks
+// with grounded sources) CHOLMOD's supernodal Cholesky; other large ones KLU, which is built
+// for circuit matrices.
 // Rows and columns are equilibrated first, so that the condition estimate measures the
 // circuit (a 10 Gohm resistor beside a voltage source is not ill-posed) and not the units.
 
@@ -12,7 +14,7 @@
 namespace netfold {
 
 /// Which factorization serves a system.
-enum class SolverKind { dense_lu, sparse_klu };
+enum class SolverKind { dense_lu, sparse_klu, sparse_cholesky };
 
 class LinearSolver {
  public:
@@ -32,6 +34,10 @@ class LinearSolver {
 inline constexpr Eigen::Index kDenseLimit = 300;
 
 /// Factors G. Never throws for a singular matrix: rcond() is then 0 and the caller reports it.
-std::unique_ptr<LinearSolver> factor_nodal_matrix(const Eigen::SparseMatrix<double>& g);
+/// `spd` says G is symmetric positive definite (NodalSystem::symmetric_positive_definite).
+std::unique_ptr<LinearSolver> factor_nodal_matrix(const Eigen::SparseMatrix<double>& g, bool spd = false);
+
+/// Name of a solver kind for reports: "dense LU", "KLU", "CHOLMOD Cholesky".
+const char* solver_kind_name(SolverKind kind);
 
 }  // namespace netfold

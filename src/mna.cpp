@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <deque>
+#include <unordered_map>
 #include <numeric>
 
 namespace netfold {
@@ -122,7 +123,8 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
   // Topology first: which nodes the reference reaches through voltage-defining branches,
   // and which ideal voltage branches close a loop among themselves.
   DisjointSets reach(n_nodes), stiff(n_nodes);
-  std::vector<std::vector<std::pair<NodeId, ElementId>>> stiff_tree(n_nodes);
+  // Ideal branches are few even in a huge network: keep their tree in a hash map.
+  std::unordered_map<NodeId, std::vector<std::pair<NodeId, ElementId>>> stiff_tree;
   const ElementId test_port_id = n_elem;  // stands for the test port in loop lists
   auto record_loop = [&](ElementId closing, NodeId from, NodeId to) {
     // The loop: the closing branch plus the tree path between its ends.
@@ -134,7 +136,9 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
       NodeId n = queue.front();
       queue.pop_front();
       if (n == to) break;
-      for (auto [next, via] : stiff_tree[n])
+      auto found = stiff_tree.find(n);
+      if (found == stiff_tree.end()) continue;
+      for (auto [next, via] : found->second)
         if (came_from[next].first == kNone) {
           came_from[next] = {n, via};
           queue.push_back(next);
@@ -209,38 +213,97 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
     sys.problems_.push_back(std::move(problem));
   }
 
-  // Unknowns: node voltages, then branch currents.
+  // Nodes whose voltage the reference fixes through a chain of ideal branches (grounded
+  // sources, a grounded capacitor port, closed ideal switches) are eliminated: their voltage
+  // is a sum of inputs and their KCL gives the branch currents instead. What remains, for a
+  // network of resistors and grounded sources, is the symmetric positive definite nodal
+  // matrix, which a Cholesky factorization solves; ideal branches elsewhere and controlled
+  // sources keep their branch unknowns (general MNA).
+  sys.fixed_index_.assign(n_nodes, kNone);
+  sys.tree_index_.assign(n_elem, kNone);
+  std::vector<ElementId> tree_edge{kNone};  // per fixed node (by fixed index): its branch to the reference
+  std::vector<NodeId> fixed_order;
+  {
+    auto eliminable = [&](ElementId i) {
+      const Element& e = elements[i];
+      if (edges[i] != Edge::stiff || sensed[i]) return false;
+      return e.kind == ElementKind::voltage_source || e.kind == ElementKind::capacitor ||
+             e.kind == ElementKind::switch_ || e.kind == ElementKind::inductor;
+    };
+    std::unordered_map<NodeId, std::vector<ElementId>> ideal_at;
+    for (ElementId i = 0; i < n_elem; ++i)
+      if (eliminable(i)) {
+        ideal_at[elements[i].pos].push_back(i);
+        ideal_at[elements[i].neg].push_back(i);
+      }
+    sys.fixed_index_[circuit.ground()] = 0;
+    sys.fixed_voltage_.emplace_back();
+    std::deque<NodeId> queue{circuit.ground()};
+    while (!queue.empty()) {
+      NodeId n = queue.front();
+      queue.pop_front();
+      auto found = ideal_at.find(n);
+      if (found == ideal_at.end()) continue;
+      for (ElementId i : found->second) {
+        const Element& e = elements[i];
+        NodeId other = e.pos == n ? e.neg : e.pos;
+        if (sys.fixed_index_[other] != kNone) continue;
+        sys.fixed_index_[other] = static_cast<std::uint32_t>(sys.fixed_voltage_.size());
+        tree_edge.push_back(i);
+        fixed_order.push_back(other);
+        // v(pos) − v(neg) = value of the branch.
+        LinearForm f = sys.fixed_voltage_[sys.fixed_index_[n]];
+        double sign = other == e.pos ? 1.0 : -1.0;
+        if (e.kind == ElementKind::voltage_source) f.inputs.push_back({sys.source_input_[i], sign});
+        if (e.kind == ElementKind::capacitor) f.inputs.push_back({0, sign});
+        sys.fixed_voltage_.push_back(std::move(f));
+        sys.tree_index_[i] = static_cast<std::uint32_t>(sys.tree_currents_.size());
+        sys.tree_currents_.emplace_back();
+        queue.push_back(other);
+      }
+    }
+  }
+
+  // Unknowns: free node voltages, then branch currents.
   sys.node_unknown_.assign(n_nodes, kNone);
   std::vector<bool> is_pinned(n_nodes, false);
   for (NodeId n : pinned) is_pinned[n] = true;
+  std::uint32_t n_unknowns = 0;
   for (NodeId n = 0; n < n_nodes; ++n) {
-    if (n == circuit.ground() || is_pinned[n]) continue;
-    sys.node_unknown_[n] = static_cast<std::uint32_t>(sys.labels_.size());
-    sys.labels_.push_back("v(" + circuit.nodes()[n] + ")");
+    if (sys.fixed_index_[n] != kNone || is_pinned[n]) continue;
+    sys.node_unknown_[n] = n_unknowns++;
   }
+  sys.node_unknown_count_ = n_unknowns;
   sys.branch_unknown_.assign(n_elem, kNone);
+  bool general = false;  // needs the general (unsymmetric) MNA
   for (ElementId i = 0; i < n_elem; ++i) {
     const Element& e = elements[i];
     bool branch = false;
     switch (edges[i]) {
       case Edge::stiff:
-      case Edge::soft: branch = true; break;
+      case Edge::soft: branch = sys.tree_index_[i] == kNone; break;
       case Edge::resistive: branch = sensed[i]; break;
-      case Edge::current: branch = sensed[i] && (e.kind == ElementKind::vccs || e.kind == ElementKind::cccs); break;
+      case Edge::current:
+        branch = sensed[i] && (e.kind == ElementKind::vccs || e.kind == ElementKind::cccs);
+        general |= e.kind == ElementKind::vccs || e.kind == ElementKind::cccs;
+        break;
       case Edge::none: break;
     }
     if (!branch) continue;
-    sys.branch_unknown_[i] = static_cast<std::uint32_t>(sys.labels_.size());
-    sys.labels_.push_back("i(" + e.name + ")");
+    general = true;
+    sys.branch_unknown_[i] = n_unknowns++;
+    sys.branch_owner_.push_back(i);
   }
-
   if (options.test_port) {
-    sys.test_branch_ = static_cast<std::uint32_t>(sys.labels_.size());
-    sys.labels_.push_back("i(test port)");
+    general = true;
+    sys.test_branch_ = n_unknowns++;
   }
+  sys.symmetric_positive_definite_ = !general;
 
-  // Stamps. KCL rows: the sum of currents leaving a node through its elements is zero.
-  const auto n_unknown = static_cast<Eigen::Index>(sys.labels_.size());
+  // Stamps. KCL rows: the sum of currents leaving a node through its elements is zero; a
+  // term in a fixed voltage moves to the right-hand side as inputs.
+  sys.unknown_count_ = n_unknowns;
+  const auto n_unknown = static_cast<Eigen::Index>(n_unknowns);
   std::vector<Eigen::Triplet<double>> g, b;
   g.reserve(static_cast<std::size_t>(4 * n_elem));
   auto add_g = [&](std::uint32_t row, std::uint32_t col, double v) {
@@ -249,16 +312,24 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
   auto add_b = [&](std::uint32_t row, std::uint32_t input, double v) {
     if (row != kNone) b.emplace_back(row, input, v);
   };
-  // Adds coef·form to row `row`, unknown parts to G and input parts (negated) to B.
+  // Adds coef·form to row `row`: unknown parts to G, input parts (negated) to B.
   auto add_form = [&](std::uint32_t row, const LinearForm& form, double coef) {
+    if (row == kNone) return;
     for (auto [x, c] : form.unknowns) add_g(row, x, coef * c);
     for (auto [u, c] : form.inputs) add_b(row, u, -coef * c);
   };
-  auto voltage_form = [&](NodeId p, NodeId q) {
-    LinearForm f;
-    if (sys.node_unknown_[p] != kNone) f.unknowns.push_back({sys.node_unknown_[p], 1.0});
-    if (sys.node_unknown_[q] != kNone) f.unknowns.push_back({sys.node_unknown_[q], -1.0});
-    return f;
+  // coef·v(node) into row `row`, without building a form (the hot path of big networks).
+  auto add_node = [&](std::uint32_t row, NodeId node, double coef) {
+    if (row == kNone) return;
+    if (sys.node_unknown_[node] != kNone) {
+      g.emplace_back(row, sys.node_unknown_[node], coef);
+    } else if (sys.fixed_index_[node] != kNone) {  // else pinned at 0 V
+      for (auto [u, c] : sys.fixed_voltage_[sys.fixed_index_[node]].inputs) b.emplace_back(row, u, -coef * c);
+    }
+  };
+  auto add_voltage = [&](std::uint32_t row, NodeId p, NodeId q, double coef) {
+    add_node(row, p, coef);
+    add_node(row, q, -coef);
   };
 
   for (ElementId i = 0; i < n_elem; ++i) {
@@ -275,23 +346,22 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
         double r = e.kind == ElementKind::resistor ? e.value : (sys.switch_closed(i) ? e.r_on : e.r_off);
         if (j == kNone) {
           double gv = 1.0 / r;
-          add_g(rp, rp, gv);
-          add_g(rn, rn, gv);
-          add_g(rp, rn, -gv);
-          add_g(rn, rp, -gv);
+          add_voltage(rp, e.pos, e.neg, gv);
+          add_voltage(rn, e.pos, e.neg, -gv);
         } else {  // v(pos) − v(neg) − R·j = 0
-          add_form(j, voltage_form(e.pos, e.neg), 1.0);
+          add_voltage(j, e.pos, e.neg, 1.0);
           add_g(j, j, -r);
         }
         break;
       }
       case Edge::stiff:
       case Edge::soft: {
-        add_form(j, voltage_form(e.pos, e.neg), 1.0);
+        if (j == kNone) break;  // eliminated: its voltage is fixed, its current comes from KCL
+        add_voltage(j, e.pos, e.neg, 1.0);
         if (e.kind == ElementKind::voltage_source) add_b(j, sys.source_input_[i], 1.0);
         if (e.kind == ElementKind::capacitor) add_b(j, 0, 1.0);
         // An inductor held at zero current is a 0 V branch: nothing more to stamp.
-        if (e.kind == ElementKind::vcvs) add_form(j, voltage_form(e.sense_pos, e.sense_neg), -e.value);
+        if (e.kind == ElementKind::vcvs) add_voltage(j, e.sense_pos, e.sense_neg, -e.value);
         if (e.kind == ElementKind::ccvs) add_form(j, sys.sensed_current(e.sense_element), -e.value);
         break;
       }
@@ -299,10 +369,7 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
         LinearForm drive;
         if (e.kind == ElementKind::current_source) drive.inputs.push_back({sys.source_input_[i], 1.0});
         if (e.kind == ElementKind::inductor) drive.inputs.push_back({0, 1.0});
-        if (e.kind == ElementKind::vccs) {
-          drive = voltage_form(e.sense_pos, e.sense_neg);
-          for (auto& [x, c] : drive.unknowns) c *= e.value;
-        }
+        if (e.kind == ElementKind::vccs) drive = sys.voltage_form(e.sense_pos, e.sense_neg, e.value);
         if (e.kind == ElementKind::cccs) {
           drive = sys.sensed_current(e.sense_element);
           for (auto& [x, c] : drive.unknowns) c *= e.value;
@@ -324,29 +391,99 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
     const std::uint32_t j = sys.test_branch_;
     add_g(sys.node_unknown_[p], j, 1.0);
     add_g(sys.node_unknown_[q], j, -1.0);
-    add_form(j, voltage_form(p, q), 1.0);
+    add_voltage(j, p, q, 1.0);
     add_b(j, sys.test_input_, 1.0);
   }
   sys.g_.resize(n_unknown, n_unknown);
   sys.g_.setFromTriplets(g.begin(), g.end());
   sys.b_.resize(n_unknown, n_input);
   sys.b_.setFromTriplets(b.begin(), b.end());
+
+  // Currents of the eliminated branches, from the KCL of their far node, leaves first: the
+  // current leaving a node through its tree branch balances what leaves through the rest.
+  std::vector<std::vector<ElementId>> incident(sys.fixed_voltage_.size());
+  for (ElementId i = 0; i < n_elem; ++i) {
+    if (edges[i] == Edge::none) continue;
+    for (NodeId n : {elements[i].pos, elements[i].neg})
+      if (sys.fixed_index_[n] != kNone) incident[sys.fixed_index_[n]].push_back(i);
+  }
+  for (auto it = fixed_order.rbegin(); it != fixed_order.rend(); ++it) {
+    NodeId n = *it;
+    const std::uint32_t fx = sys.fixed_index_[n];
+    ElementId edge = tree_edge[fx];
+    LinearForm others;
+    for (ElementId i : incident[fx]) {
+      if (i == edge) continue;
+      LinearForm f = sys.element_current(i);
+      double sign = elements[i].pos == n ? 1.0 : -1.0;
+      for (auto [x, c] : f.unknowns) others.unknowns.push_back({x, sign * c});
+      for (auto [u, c] : f.inputs) others.inputs.push_back({u, sign * c});
+    }
+    if (options.test_port) {
+      auto [p, q] = *options.test_port;
+      if (p == n) others.unknowns.push_back({sys.test_branch_, 1.0});
+      if (q == n) others.unknowns.push_back({sys.test_branch_, -1.0});
+    }
+    compact(others);
+    double sign = elements[edge].pos == n ? -1.0 : 1.0;
+    for (auto& [x, c] : others.unknowns) c *= sign;
+    for (auto& [u, c] : others.inputs) c *= sign;
+    sys.tree_currents_[sys.tree_index_[edge]] = std::move(others);
+  }
   return sys;
 }
 
-LinearForm NodalSystem::node_voltage(NodeId node) const {
+void compact(LinearForm& f) {
+  auto merge = [](auto& terms) {
+    std::sort(terms.begin(), terms.end(), [](const auto& a, const auto& b) { return a.first < b.first; });
+    std::size_t out = 0;
+    for (std::size_t k = 0; k < terms.size(); ++k) {
+      if (out > 0 && terms[out - 1].first == terms[k].first) {
+        terms[out - 1].second += terms[k].second;
+      } else {
+        terms[out++] = terms[k];
+      }
+    }
+    terms.resize(out);
+    std::erase_if(terms, [](const auto& t) { return t.second == 0.0; });
+  };
+  merge(f.unknowns);
+  merge(f.inputs);
+}
+
+std::string NodalSystem::label(std::uint32_t i) const {
+  if (i == test_branch_) return "i(test port)";
+  if (i >= node_unknown_count_) return "i(" + circuit_->element(branch_owner_[i - node_unknown_count_]).name + ")";
+  for (NodeId n = 0; n < node_unknown_.size(); ++n)
+    if (node_unknown_[n] == i) return "v(" + circuit_->nodes()[n] + ")";
+  return "?";
+}
+
+LinearForm NodalSystem::voltage_form(NodeId p, NodeId q, double coef) const {
   LinearForm f;
+  auto add = [&](NodeId n, double k) {
+    if (node_unknown_[n] != kNone) {
+      f.unknowns.push_back({node_unknown_[n], k});
+    } else if (fixed_index_[n] != kNone) {  // else pinned at 0 V
+      for (auto [u, c] : fixed_voltage_[fixed_index_[n]].inputs) f.inputs.push_back({u, k * c});
+    }
+  };
+  add(p, coef);
+  if (q != kNone) add(q, -coef);
+  if (q != kNone) compact(f);
+  return f;
+}
+
+LinearForm NodalSystem::node_voltage(NodeId node) const {
+  LinearForm f = voltage_form(node, kNone, 1.0);
   f.defined = !floating_[node];
-  if (node_unknown_[node] != kNone) f.unknowns.push_back({node_unknown_[node], 1.0});
   return f;
 }
 
 LinearForm NodalSystem::element_voltage(ElementId id) const {
   const Element& e = circuit_->elements()[id];
-  LinearForm f;
+  LinearForm f = voltage_form(e.pos, e.neg, 1.0);
   f.defined = component_[e.pos] == component_[e.neg];
-  if (node_unknown_[e.pos] != kNone) f.unknowns.push_back({node_unknown_[e.pos], 1.0});
-  if (node_unknown_[e.neg] != kNone) f.unknowns.push_back({node_unknown_[e.neg], -1.0});
   return f;
 }
 
@@ -357,6 +494,7 @@ LinearForm NodalSystem::sensed_current(ElementId id) const {
     f.unknowns.push_back({branch_unknown_[id], 1.0});
     return f;
   }
+  if (tree_index_[id] != kNone) return tree_currents_[tree_index_[id]];
   switch (e.kind) {
     case ElementKind::current_source: f.inputs.push_back({source_input_[id], 1.0}); break;
     case ElementKind::inductor:
@@ -369,10 +507,9 @@ LinearForm NodalSystem::sensed_current(ElementId id) const {
 
 LinearForm NodalSystem::element_current(ElementId id) const {
   const Element& e = circuit_->elements()[id];
-  if (branch_unknown_[id] != kNone) return sensed_current(id);
+  if (branch_unknown_[id] != kNone || tree_index_[id] != kNone) return sensed_current(id);
   auto scaled_voltage = [&](double conductance) {
-    LinearForm f = element_voltage(id);
-    for (auto& [x, c] : f.unknowns) c *= conductance;
+    LinearForm f = voltage_form(e.pos, e.neg, conductance);
     f.defined = true;  // a conductance's current is defined even where its voltage floats
     return f;
   };
@@ -384,9 +521,7 @@ LinearForm NodalSystem::element_current(ElementId id) const {
       return scaled_voltage(1.0 / r);
     }
     case ElementKind::vccs: {
-      LinearForm f;
-      if (node_unknown_[e.sense_pos] != kNone) f.unknowns.push_back({node_unknown_[e.sense_pos], e.value});
-      if (node_unknown_[e.sense_neg] != kNone) f.unknowns.push_back({node_unknown_[e.sense_neg], -e.value});
+      LinearForm f = voltage_form(e.sense_pos, e.sense_neg, e.value);
       f.defined = component_[e.sense_pos] == component_[e.sense_neg];
       return f;
     }

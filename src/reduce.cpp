@@ -12,9 +12,9 @@ namespace netfold {
 ReducedNetwork::ReducedNetwork(const Circuit& circuit, const SwitchPositions& positions, const BuildOptions& options)
     : system_(build_nodal_system(circuit, positions, options)) {
   const auto& g = system_.matrix();
-  auto solver = factor_nodal_matrix(g);
+  auto solver = factor_nodal_matrix(g, system_.symmetric_positive_definite());
   rcond_ = solver->rcond();
-  solver_name_ = solver->kind() == SolverKind::dense_lu ? "dense LU" : "KLU";
+  solver_name_ = solver_kind_name(solver->kind());
   if (rcond_ < kSingularRcond) {
     // Name what is degenerate: the unknowns a null vector of G involves.
     if (g.rows() <= kDenseLimit && g.rows() > 0) {

@@ -5,9 +5,10 @@
 ///
 ///     G · x = B · u
 ///
-/// x: unknowns — node voltages (V, the reference and pinned nodes excluded) then branch
-///    currents (A) of the elements that need one (voltage sources, vcvs, ccvs, ideal closed
-///    switches, the capacitor port, and elements whose current another element senses);
+/// x: unknowns — node voltages (V; the reference, pinned nodes and nodes whose voltage ideal
+///    branches to the reference fix are excluded) then branch currents (A) of the elements
+///    that need one (floating voltage sources, vcvs, ccvs, ideal closed switches, the
+///    capacitor port, and elements whose current another element senses);
 /// u: inputs — u[0] is the storage element's state (capacitor voltage in V or inductor
 ///    current in A), u[1 + k] the present value of the k-th independent source;
 /// G: the nodal matrix (S and dimensionless entries); B: how each input enters.
@@ -84,7 +85,7 @@ struct TopologyProblem {
 class NodalSystem {
  public:
   /// Number of unknowns (rows of G).
-  std::uint32_t unknown_count() const { return static_cast<std::uint32_t>(labels_.size()); }
+  std::uint32_t unknown_count() const { return unknown_count_; }
   /// Number of inputs (columns of B): 1 + number of independent sources.
   std::uint32_t input_count() const { return input_count_; }
   /// The nodal matrix G, column-major compressed.
@@ -92,7 +93,7 @@ class NodalSystem {
   /// The input matrix B.
   const Eigen::SparseMatrix<double>& inputs() const { return b_; }
   /// A readable name of unknown i: "v(a)" or "i(K1)".
-  const std::string& label(std::uint32_t i) const { return labels_[i]; }
+  std::string label(std::uint32_t i) const;
   /// Structural problems found while building (empty for a well-posed network).
   const std::vector<TopologyProblem>& problems() const { return problems_; }
   /// True when `node` belongs to a sub-network with no path to the reference.
@@ -112,6 +113,13 @@ class NodalSystem {
   LinearForm test_port_current() const;
   /// Index of the test port's input in u (kNone without a test port).
   std::uint32_t test_port_input() const { return test_input_; }
+  /// True when G is symmetric positive definite (resistors and grounded ideal sources
+  /// only, after elimination): a Cholesky factorization applies.
+  bool symmetric_positive_definite() const { return symmetric_positive_definite_; }
+  /// True when the node's voltage is a fixed sum of inputs (eliminated from the unknowns).
+  bool node_fixed(NodeId node) const { return fixed_index_[node] != kNone; }
+  /// coef·(v(p) − v(q)) as a form (q may be kNone for v(p) alone).
+  LinearForm voltage_form(NodeId p, NodeId q, double coef) const;
   /// Right-hand side B·u.
   Eigen::VectorXd right_hand_side(const Eigen::VectorXd& u) const { return b_ * u; }
 
@@ -130,8 +138,15 @@ class NodalSystem {
   std::vector<std::uint32_t> switch_index_;    ///< per element: index into positions_, or kNone
   std::vector<bool> floating_;
   std::vector<std::uint32_t> component_;
-  std::vector<std::string> labels_;
+  std::uint32_t unknown_count_ = 0;
+  std::uint32_t node_unknown_count_ = 0;
+  std::vector<ElementId> branch_owner_;        ///< element of each branch unknown, in order
   std::vector<TopologyProblem> problems_;
+  std::vector<std::uint32_t> fixed_index_;    ///< per node: index into fixed_voltage_, or kNone (free)
+  std::vector<LinearForm> fixed_voltage_;     ///< voltages of the fixed nodes as inputs (0: the reference)
+  std::vector<std::uint32_t> tree_index_;     ///< per element: index into tree_currents_, or kNone
+  std::vector<LinearForm> tree_currents_;     ///< currents of the eliminated ideal branches
+  bool symmetric_positive_definite_ = false;
   Eigen::SparseMatrix<double> g_;
   Eigen::SparseMatrix<double> b_;
 
@@ -145,6 +160,9 @@ class NodalSystem {
 /// The circuit must outlive the returned system.
 NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& positions,
                                const BuildOptions& options = {});
+
+/// Sorts a form's terms, merging repeated indices and dropping zeros.
+void compact(LinearForm& form);
 
 /// Values of every input at time t: u[0] = state, u[1 + k] = source k's waveform at t.
 Eigen::VectorXd input_values(const Circuit& circuit, const std::vector<ElementId>& sources,
