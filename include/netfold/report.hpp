@@ -14,6 +14,7 @@
 
 #include "netfold/plot.hpp"
 #include "netfold/solve.hpp"
+#include "netfold/verify.hpp"
 
 namespace netfold {
 
@@ -60,6 +61,13 @@ struct SolveReport {
   bool hazardous = false;                ///< above 50 V AC (rms) or 120 V DC somewhere
   std::optional<VerificationSummary> verification;
 };
+
+/// The solve report's one-line view of a cross-check.
+VerificationSummary summarize_verification(const VerifyReport& report);
+/// The text report of `verify`.
+void write_verify_text(std::ostream& out, const VerifyReport& report, const Solution& solution);
+/// JSON of `verify` (fields of docs/cli.md).
+std::string verify_json(const VerifyReport& report);
 
 /// Computes figures, totals and ratings of a solution (ratings against the solved values).
 SolveReport build_solve_report(const Solution& solution);

@@ -7,6 +7,7 @@
 #include "netfold/plot.hpp"
 #include "netfold/report.hpp"
 #include "netfold/solve.hpp"
+#include "netfold/verify.hpp"
 
 namespace netfold::cli {
 
@@ -34,6 +35,7 @@ Command register_solve(CLI::App& app) {
     Circuit circuit = parse_netlist_file(args->file);
     Solution solution = solve(circuit);
     SolveReport report = build_solve_report(solution);
+    if (!args->no_verify) report.verification = summarize_verification(verify_closed_form(solution));
 
     // Everything is computed before anything is written, so a failure leaves no output file.
     std::string csv = args->csv.empty() ? "" : waveform_csv(solution);

@@ -1,0 +1,79 @@
+// Reports of the numerical cross-check: `verify` text and JSON, and its line in `solve`.
+#include <cmath>
+
+#include <fmt/format.h>
+#include <fmt/ostream.h>
+#include <nlohmann/json.hpp>
+
+#include "netfold/report.hpp"
+#include "netfold/units.hpp"
+
+namespace netfold {
+
+namespace {
+nlohmann::json number(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr); }
+}  // namespace
+
+VerificationSummary summarize_verification(const VerifyReport& r) {
+  VerificationSummary s;
+  s.method = r.method;
+  s.max_rel_error = r.max_rel_error;
+  s.rtol = r.rtol;
+  s.passed = r.passed;
+  s.message = r.message;
+  s.steps = r.stats.steps;
+  s.rhs_evals = r.stats.rhs_evals;
+  return s;
+}
+
+void write_verify_text(std::ostream& out, const VerifyReport& r, const Solution& sol) {
+  const Circuit& c = sol.circuit();
+  fmt::print(out, "netfold verify: {}{}\n", c.title().empty() ? c.source().path() : c.title(),
+             c.title().empty() ? "" : fmt::format("  ({})", c.source().path()));
+  fmt::print(out, "closed form against {} (CVODE, BDF, Newton) on the full nodal equations, {} samples\n",
+             r.method, r.samples);
+  fmt::print(out, "integrator tolerances: rtol {:.1e}, atol {}\n\n", r.integrator_rtol,
+             sol.storage() != kNone
+                 ? format_si(r.integrator_atol, c.element(sol.storage()).kind == ElementKind::capacitor ? "V" : "A", 3)
+                 : std::string("-"));
+  fmt::print(out, "{:<18} {:>13} {:>13} {:>12} {:>11}\n", "observable", "max |closed|", "max |error|", "rel. error",
+             "at");
+  for (const auto& o : r.observables) {
+    std::string unit(dimension_symbol(o.dimension));
+    fmt::print(out, "{:<18} {:>13} {:>13} {:>12.2e} {:>11}\n", o.name, format_si(o.max_closed, unit, 4),
+               format_si(o.max_abs_error, unit, 3), o.max_rel_error, format_si(o.t_at, "s", 4));
+  }
+  fmt::print(out, "\nCVODE: {} steps, {} right-hand sides (each a full nodal solve), {} error-test failures, "
+                  "{} convergence failures, {} matrix setups, {} factorizations\n",
+             r.stats.steps, r.stats.rhs_evals, r.stats.error_test_failures, r.stats.nonlinear_conv_failures,
+             r.stats.linear_setups, r.stats.factorizations);
+  for (const auto& n : r.notes) fmt::print(out, "note: {}\n", n);
+  fmt::print(out, "{}: {}\n", r.passed ? "PASS" : "FAIL", r.message);
+}
+
+std::string verify_json(const VerifyReport& r) {
+  nlohmann::json j;
+  j["method"] = r.method;
+  j["rtol"] = number(r.rtol);
+  j["passed"] = r.passed;
+  j["max_rel_error"] = number(r.max_rel_error);
+  j["t_at"] = number(r.t_at);
+  nlohmann::json obs = nlohmann::json::object();
+  for (const auto& o : r.observables)
+    obs[o.name] = {{"max_rel_error", number(o.max_rel_error)},
+                   {"t_at", number(o.t_at)},
+                   {"max_abs_error", number(o.max_abs_error)},
+                   {"max_closed", number(o.max_closed)}};
+  j["observables"] = obs;
+  j["steps"] = r.stats.steps;
+  j["rhs_evals"] = r.stats.rhs_evals;
+  j["error_test_failures"] = r.stats.error_test_failures;
+  j["nonlinear_conv_failures"] = r.stats.nonlinear_conv_failures;
+  j["samples"] = r.samples;
+  j["integrator_rtol"] = number(r.integrator_rtol);
+  j["message"] = r.message;
+  j["notes"] = r.notes;
+  return j.dump(2) + "\n";
+}
+
+}  // namespace netfold
