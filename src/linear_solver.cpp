@@ -160,3 +160,16 @@ std::unique_ptr<LinearSolver> factor_nodal_matrix(const Eigen::SparseMatrix<doub
 }
 
 }  // namespace netfold
+
+namespace netfold {
+
+std::unique_ptr<LinearSolver> factor_nodal_matrix_with(const Eigen::SparseMatrix<double>& g, SolverKind kind) {
+  switch (kind) {
+    case SolverKind::dense_lu: return std::make_unique<DenseSolver>(g, equilibrate(g));
+    case SolverKind::sparse_klu: return std::make_unique<SparseSolver>(g, equilibrate(g));
+    case SolverKind::sparse_cholesky: return std::make_unique<CholeskySolver>(g);
+  }
+  return nullptr;
+}
+
+}  // namespace netfold

@@ -37,6 +37,10 @@ inline constexpr Eigen::Index kDenseLimit = 300;
 /// `spd` says G is symmetric positive definite (NodalSystem::symmetric_positive_definite).
 std::unique_ptr<LinearSolver> factor_nodal_matrix(const Eigen::SparseMatrix<double>& g, bool spd = false);
 
+/// Factors G with a given method regardless of size (tests compare the paths; Cholesky
+/// requires an SPD matrix).
+std::unique_ptr<LinearSolver> factor_nodal_matrix_with(const Eigen::SparseMatrix<double>& g, SolverKind kind);
+
 /// Name of a solver kind for reports: "dense LU", "KLU", "CHOLMOD Cholesky".
 const char* solver_kind_name(SolverKind kind);
 
