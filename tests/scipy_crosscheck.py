@@ -1,0 +1,390 @@
+#!/usr/bin/python3
+"""Outside-reference check of netfold's closed form with SciPy.
+
+For each circuit below, the script writes the netlist, runs `netfold solve FILE --csv -` and
+compares every CSV column with an independent integration of the same circuit's state equation:
+the ODE of each segment is derived BY HAND from the circuit values (written out in the case's
+comments), never from netfold's output, and integrated with
+scipy.integrate.solve_ivp(method="Radau", rtol=1e-12) — source: scipy.integrate.solve_ivp Radau
+(SciPy 1.10). Each observable passes when max |netfold - scipy| / max |netfold| <= 1e-6.
+
+Usage: scipy_crosscheck.py PATH/TO/netfold
+Exit status: 0 all cases agree, 1 a case disagrees or netfold failed, 77 scipy is not installed
+(CTest treats 77 as a skip).
+"""
+
+import cmath
+import csv
+import io
+import math
+import os
+import subprocess
+import sys
+import tempfile
+
+try:
+    import numpy as np
+    from scipy.integrate import solve_ivp
+except ImportError:
+    print("SKIP: scipy not installed (install python3-scipy to run the outside-reference check)")
+    sys.exit(77)
+
+RTOL_PASS = 1e-6        # the comparison's threshold (relative to max |netfold|)
+RTOL_RADAU = 1e-12      # SciPy's own tolerance
+ZERO_FLOOR = 1e-6       # an observable smaller than this share of its case's largest one of the
+                        # same unit is compared at that case's resolution (as netfold verify does)
+TWO_PI = 2.0 * math.pi
+SQRT2 = math.sqrt(2.0)
+
+
+def cos_wave(amplitude, frequency, phase=0.0):
+    return lambda t: amplitude * math.cos(TWO_PI * frequency * t + phase)
+
+
+class Segment:
+    """dx/dt = a·x + forcing(t) from `start` on, and the observables as functions of (t, x);
+    `held`: the state is 0 throughout (an inductor whose loop is open)."""
+
+    def __init__(self, start, a, forcing, observables, held=False):
+        self.start = start
+        self.a = a
+        self.forcing = forcing
+        self.observables = observables
+        self.held = held
+
+
+class Case:
+    def __init__(self, name, netlist, x0, segments, atol, units):
+        self.name = name
+        self.netlist = netlist
+        self.x0 = x0              # state at t = 0- (V or A), derived by hand
+        self.segments = segments  # in time order, the first starting at 0
+        self.atol = atol          # SciPy's absolute tolerance on the state
+        self.units = units        # observable -> "V", "A" or "W"
+
+
+# Each case is its own function, so that its lambdas close over its own values.
+
+def case_rc_step():
+    # RC step. C·dv/dt = (V - v)/R; i_C = (V - v)/R.
+    V, R, C = 10.0, 1e3, 1e-6
+    return Case("rc_step", """
+V1: voltage-source a -> gnd, dc 10 V
+K1: switch a -> b, closes at 0 s
+R1: resistor b -> c, 1 kohm
+C1: capacitor c -> gnd, 1 uF, initial 0 V
+watch C1.v, C1.i
+window 0 s .. 5 ms
+resolution 10 us
+""", 0.0, [Segment(0.0, -1 / (R * C), lambda t: V / (R * C),
+                   {"C1.v": lambda t, v: v, "C1.i": lambda t, v: (V - v) / R})],
+        1e-12 * V, {"C1.v": "V", "C1.i": "A"})
+
+
+def case_valve_coil():
+    # Valve coil (24 Vrms 50 Hz, contact opens at 35 ms, freewheel resistor). Contact closed:
+    # L·di/dt = vs - Rc·i, @a = vs. Open: the coil current circulates through Rc and Rf,
+    # L·di/dt = -(Rc + Rf)·i, and flows through Rf from gnd up to a, so @a = -Rf·i.
+    # Before t = 0 the contact is open and no source reaches the coil: i(0-) = 0.
+    vs = cos_wave(24.0 * SQRT2, 50.0)
+    L, Rc, Rf = 0.12, 18.0, 470.0
+    return Case("valve_coil", """
+supply: voltage-source l -> gnd, cosine 24 Vrms 50 Hz phase 0 deg
+K1: switch l -> a, closes at 0 s, opens at 35 ms
+coil_r: resistor a -> b, 18 ohm
+coil_l: inductor b -> gnd, 120 mH
+free_r: resistor a -> gnd, 470 ohm
+watch coil_l.i, @a, coil_l.v
+window 0 s .. 60 ms
+resolution 100 us
+""", 0.0, [Segment(0.0, -Rc / L, lambda t: vs(t) / L,
+                   {"coil_l.i": lambda t, i: i, "@a": lambda t, i: vs(t), "coil_l.v": lambda t, i: vs(t) - Rc * i}),
+           Segment(35e-3, -(Rc + Rf) / L, lambda t: 0.0,
+                   {"coil_l.i": lambda t, i: i, "@a": lambda t, i: -Rf * i,
+                    "coil_l.v": lambda t, i: -(Rc + Rf) * i})],
+        1e-12, {"coil_l.i": "A", "@a": "V", "coil_l.v": "V"})
+
+
+def case_stiff_rc_1ns():
+    # Stiff RC: tau = R·C = 1 ns, 100 V 50 Hz sine, 100 ms. C·dv/dt = (vs - v)/R. The capacitor
+    # current is a difference of two voltages that agree to ωτ = 3e-7, so the state integrated
+    # is the deviation u = v - vs instead: du/dt = -u/τ - dvs/dt, with dvs/dt = 100·ω·cos(ωt);
+    # then v = vs + u and i_C = -u/R keep their digits.
+    w = TWO_PI * 50.0
+    vs = cos_wave(100.0, 50.0, -math.pi / 2)
+    R, C = 1.0, 1e-9
+    return Case("stiff_rc_1ns", """
+V1: voltage-source a -> gnd, sine 100 V 50 Hz
+K1: switch a -> b, closes at 0 s
+R1: resistor b -> c, 1 ohm
+C1: capacitor c -> gnd, 1 nF, initial 0 V
+watch C1.v, C1.i
+window 0 s .. 100 ms
+resolution 250 us
+""", 0.0 - vs(0.0), [Segment(0.0, -1 / (R * C), lambda t: -100.0 * w * math.cos(w * t),
+                             {"C1.v": lambda t, u: vs(t) + u, "C1.i": lambda t, u: -u / R})],
+        1e-12 * 100.0 * w * R * C, {"C1.v": "V", "C1.i": "A"})
+
+
+def case_slow_rc_1000s():
+    # Slow RC: tau = 1000 s, 100 V 50 Hz, from its steady state; R2 joins at 10 ms.
+    # Before: C·dv/dt = (vs - v)/R1, steady state v(0-) = Re(V/(1 + jωR1C)).
+    # After:  C·dv/dt = (vs - v)/R1 - v/R2.
+    vs3 = cos_wave(100.0, 50.0)
+    R1, R2, C = 1e6, 1e6, 1e-3
+    w = TWO_PI * 50.0
+    x0 = (100.0 / complex(1.0, w * R1 * C)).real
+    return Case("slow_rc_1000s", """
+V1: voltage-source a -> gnd, cosine 100 V 50 Hz
+R1: resistor a -> c, 1 Mohm
+C1: capacitor c -> gnd, 1 mF
+K1: switch c -> d, closes at 10 ms
+R2: resistor d -> gnd, 1 Mohm
+watch C1.v, C1.i
+window 0 s .. 100 ms
+resolution 250 us
+""", x0, [Segment(0.0, -1 / (R1 * C), lambda t: vs3(t) / (R1 * C),
+                  {"C1.v": lambda t, v: v, "C1.i": lambda t, v: (vs3(t) - v) / R1}),
+          Segment(10e-3, -(1 / R1 + 1 / R2) / C, lambda t: vs3(t) / (R1 * C),
+                  {"C1.v": lambda t, v: v, "C1.i": lambda t, v: (vs3(t) - v) / R1 - v / R2})],
+        1e-16, {"C1.v": "V", "C1.i": "A"})
+
+
+def case_multi_frequency_rl():
+    # Multi-frequency RL: va = 2 + 10 cos(2π·50t) + 3 cos(2π·150t + 0.5), R1 = 5 ohm to b,
+    # L1 = 20 mH from b to gnd, R2 = 50 ohm joins b to gnd at 7 ms.
+    # Before: @b = va - R1·i, L·di/dt = @b. After: (va - @b)/R1 = i + @b/R2, so with
+    # g = 1/R1 + 1/R2, @b = (va/R1 - i)/g and L·di/dt = @b.
+    def va(t):
+        return 2.0 + 10.0 * math.cos(TWO_PI * 50.0 * t) + 3.0 * math.cos(TWO_PI * 150.0 * t + 0.5)
+    R1, R2, L = 5.0, 50.0, 20e-3
+    g = 1 / R1 + 1 / R2
+
+    def vb_after(t, i):
+        return (va(t) / R1 - i) / g
+    return Case("multi_frequency_rl", """
+V1: voltage-source a -> gnd, dc 2 V + cosine 10 V 50 Hz + cosine 3 V 150 Hz phase 0.5 rad
+R1: resistor a -> b, 5 ohm
+L1: inductor b -> gnd, 20 mH, initial 0 A
+K1: switch b -> c, closes at 7 ms
+R2: resistor c -> gnd, 50 ohm
+watch L1.i, @b
+window 0 s .. 40 ms
+resolution 50 us
+""", 0.0, [Segment(0.0, -R1 / L, lambda t: va(t) / L,
+                   {"L1.i": lambda t, i: i, "@b": lambda t, i: va(t) - R1 * i}),
+           Segment(7e-3, -1 / (g * L), lambda t: va(t) / (g * R1 * L),
+                   {"L1.i": lambda t, i: i, "@b": vb_after})],
+        1e-12, {"L1.i": "A", "@b": "V"})
+
+
+def case_vcvs_cccs():
+    # Controlled sources. @b = va/2 (R1 = R3 = 1 k), the vcvs makes @out = 2·@b = va.
+    # K1 joins out to e at 2 ms; R2 = 1 k from e to c; C1 = 1 uF and R5 = 10 k from c to gnd.
+    # i2 = current in R2 = (va - v)/R2 while K1 is closed, 0 before.
+    # C·dv/dt = i2 - v/R5. The cccs drives 5·i2 from gnd into d, R4 = 100 ohm: @d = 500·i2.
+    va2 = lambda t: 1.0 + 10.0 * math.cos(TWO_PI * 50.0 * t)
+    R2, R5, C = 1e3, 10e3, 1e-6
+    return Case("vcvs_cccs", """
+V1: voltage-source a -> gnd, dc 1 V + cosine 10 V 50 Hz
+R1: resistor a -> b, 1 kohm
+R3: resistor b -> gnd, 1 kohm
+E1: vcvs out -> gnd, gain 2, sense b -> gnd
+K1: switch out -> e, closes at 2 ms
+R2: resistor e -> c, 1 kohm
+C1: capacitor c -> gnd, 1 uF, initial 0 V
+R5: resistor c -> gnd, 10 kohm
+F1: cccs gnd -> d, gain 5, sense R2
+R4: resistor d -> gnd, 100 ohm
+watch C1.v, @d
+window 0 s .. 20 ms
+resolution 20 us
+""", 0.0, [Segment(0.0, -1 / (R5 * C), lambda t: 0.0, {"C1.v": lambda t, v: v, "@d": lambda t, v: 0.0}),
+           Segment(2e-3, -(1 / R2 + 1 / R5) / C, lambda t: va2(t) / (R2 * C),
+                   {"C1.v": lambda t, v: v, "@d": lambda t, v: 500.0 * (va2(t) - v) / R2})],
+        1e-12, {"C1.v": "V", "@d": "V"})
+
+
+def case_reclose_rl():
+    # Reclosing contact on an RL with a freewheel resistor, 325 V 50 Hz phase 0.4 rad.
+    # Closed: L·di/dt = va - R1·i, @b = va. Open: L·di/dt = -(R1 + Rf)·i, @b = -Rf·i.
+    va3 = cos_wave(325.0, 50.0, 0.4)
+    R1, Rf, L = 4.0, 100.0, 30e-3
+    closed = {"L1.i": lambda t, i: i, "@b": lambda t, i: va3(t)}
+    opened = {"L1.i": lambda t, i: i, "@b": lambda t, i: -Rf * i}
+    return Case("reclose_rl", """
+V1: voltage-source a -> gnd, cosine 325 V 50 Hz phase 0.4 rad
+K1: switch a -> b, closes at 0 s, opens at 5 ms, closes at 8 ms, opens at 12 ms, closes at 15 ms
+R1: resistor b -> c, 4 ohm
+L1: inductor c -> gnd, 30 mH, initial 0 A
+Rf: resistor b -> gnd, 100 ohm
+watch L1.i, @b
+window 0 s .. 40 ms
+resolution 50 us
+""", 0.0, [Segment(0.0, -R1 / L, lambda t: va3(t) / L, closed),
+           Segment(5e-3, -(R1 + Rf) / L, lambda t: 0.0, opened),
+           Segment(8e-3, -R1 / L, lambda t: va3(t) / L, closed),
+           Segment(12e-3, -(R1 + Rf) / L, lambda t: 0.0, opened),
+           Segment(15e-3, -R1 / L, lambda t: va3(t) / L, closed)],
+        1e-12, {"L1.i": "A", "@b": "V"})
+
+
+def case_held_at_zero_rl():
+    # An inductor whose loop is open with zero current: held at 0 until K1 closes at 2 ms,
+    # then L·di/dt = V - R·i, v_L = V - R·i (0 while held: its current cannot change).
+    V, R, L = 10.0, 10.0, 10e-3
+    return Case("held_at_zero_rl", """
+V1: voltage-source a -> gnd, dc 10 V
+K1: switch a -> b, closes at 2 ms
+R1: resistor b -> c, 10 ohm
+L1: inductor c -> gnd, 10 mH, initial 0 A
+watch L1.i, L1.v
+window 0 s .. 10 ms
+resolution 20 us
+""", 0.0, [Segment(0.0, 0.0, lambda t: 0.0, {"L1.i": lambda t, i: 0.0, "L1.v": lambda t, i: 0.0}, held=True),
+           Segment(2e-3, -R / L, lambda t: V / L, {"L1.i": lambda t, i: i, "L1.v": lambda t, i: V - R * i})],
+        1e-12, {"L1.i": "A", "L1.v": "V"})
+
+
+def case_rl_steady_state():
+    # RL from its AC steady state: before 10 ms K1 shorts R0, L·di/dt = vs - R1·i, with
+    # i(0-) = Re(V·e^{jφ}/(R1 + jωL)); after, L·di/dt = vs - (R0 + R1)·i.
+    vs4 = cos_wave(10.0, 50.0, math.radians(30.0))
+    R0, R1, L = 10.0, 10.0, 0.1
+    w = TWO_PI * 50.0
+    x0 = (cmath.rect(10.0, math.radians(30.0)) / complex(R1, w * L)).real
+    return Case("rl_steady_state", """
+V1: voltage-source a -> gnd, cosine 10 V 50 Hz phase 30 deg
+K1: switch a -> b, opens at 10 ms
+R0: resistor a -> b, 10 ohm
+R1: resistor b -> c, 10 ohm
+L1: inductor c -> gnd, 100 mH
+watch L1.i, L1.v
+window 0 s .. 60 ms
+resolution 100 us
+""", x0, [Segment(0.0, -R1 / L, lambda t: vs4(t) / L,
+                  {"L1.i": lambda t, i: i, "L1.v": lambda t, i: vs4(t) - R1 * i}),
+          Segment(10e-3, -(R0 + R1) / L, lambda t: vs4(t) / L,
+                  {"L1.i": lambda t, i: i, "L1.v": lambda t, i: vs4(t) - (R0 + R1) * i})],
+        1e-12, {"L1.i": "A", "L1.v": "V"})
+
+
+def case_list():
+    return [
+        case_rc_step(),
+        case_valve_coil(),
+        case_stiff_rc_1ns(),
+        case_slow_rc_1000s(),
+        case_multi_frequency_rl(),
+        case_vcvs_cccs(),
+        case_reclose_rl(),
+        case_held_at_zero_rl(),
+        case_rl_steady_state(),
+    ]
+
+
+def run_netfold(netfold, case, directory):
+    path = os.path.join(directory, case.name + ".nf")
+    with open(path, "w", encoding="utf-8") as f:
+        f.write(case.netlist.lstrip())
+    proc = subprocess.run([netfold, "solve", path, "--csv", "-", "--no-verify"], capture_output=True, text=True)
+    # Exit 1 is a rating or claim verdict; the CSV is still complete.
+    if proc.returncode not in (0, 1) or not proc.stdout.startswith("t,"):
+        raise RuntimeError(f"netfold solve exited {proc.returncode}: {proc.stderr.strip() or proc.stdout[:200]}")
+    rows = list(csv.reader(io.StringIO(proc.stdout)))
+    header = rows[0]
+    data = np.array([[float(v) for v in r] for r in rows[1:] if r], dtype=float)
+    return header[1:], data[:, 0], {name: data[:, j + 1] for j, name in enumerate(header[1:])}
+
+
+def segment_at(case, t):
+    """The segment holding t: an event time belongs to the segment it starts."""
+    seg = case.segments[0]
+    for s in case.segments:
+        if s.start <= t:
+            seg = s
+    return seg
+
+
+def integrate(case, times):
+    """State at each sample time. Each sample is the end of its own solve_ivp call, never an
+    interpolation: Radau's dense output is of lower order than its steps, and an observable that
+    is a small difference of large terms (the stiff RC's current) would amplify that error."""
+    x, t = case.x0, 0.0
+    boundaries = [s.start for s in case.segments[1:]]
+    out = np.empty(len(times))
+
+    def advance(x, t0, t1, seg):
+        if seg.held:
+            return 0.0
+        if t1 <= t0:
+            return x
+        sol = solve_ivp(lambda tt, y: [seg.a * y[0] + seg.forcing(tt)], (t0, t1), [x], method="Radau",
+                        rtol=RTOL_RADAU, atol=case.atol, jac=lambda tt, y: [[seg.a]])
+        if not sol.success:
+            raise RuntimeError(f"solve_ivp failed at t = {sol.t[-1]}: {sol.message}")
+        return float(sol.y[0, -1])
+
+    for k, tk in enumerate(times):
+        # Cross every event up to tk, switching equations there (the state is continuous;
+        # a held segment keeps it at 0).
+        while boundaries and boundaries[0] <= tk:
+            x = advance(x, t, boundaries[0], segment_at(case, t))
+            t = boundaries.pop(0)
+            if segment_at(case, t).held:
+                x = 0.0
+        x = advance(x, t, tk, segment_at(case, t))
+        t = tk
+        out[k] = x
+    return out
+
+
+def compare(case, names, times, closed):
+    state = integrate(case, times)
+    reference = {}
+    for name in names:
+        reference[name] = np.array([segment_at(case, t).observables[name](t, x) for t, x in zip(times, state)])
+    peers = {}
+    for name in names:
+        unit = case.units[name]
+        peers[unit] = max(peers.get(unit, 0.0), float(np.max(np.abs(closed[name]))))
+    results = []
+    for name in names:
+        err = np.abs(closed[name] - reference[name])
+        k = int(np.argmax(err))
+        norm = max(float(np.max(np.abs(closed[name]))), ZERO_FLOOR * peers[case.units[name]])
+        rel = float(err[k]) / norm if norm > 0 else (0.0 if err[k] == 0 else 1.0)
+        results.append((name, rel, float(times[k])))
+    return results
+
+
+def main():
+    if len(sys.argv) != 2:
+        print("usage: scipy_crosscheck.py PATH/TO/netfold", file=sys.stderr)
+        return 2
+    netfold = sys.argv[1]
+    failures = 0
+    with tempfile.TemporaryDirectory(prefix="netfold-scipy-") as directory:
+        for case in case_list():
+            try:
+                names, times, closed = run_netfold(netfold, case, directory)
+                missing = [n for n in case.units if n not in names]
+                if missing:
+                    raise RuntimeError(f"netfold's CSV lacks {', '.join(missing)} (columns: {', '.join(names)})")
+                results = compare(case, names, times, closed)
+            except (RuntimeError, OSError, ValueError) as e:
+                print(f"FAIL {case.name}: {e}")
+                failures += 1
+                continue
+            worst = max(results, key=lambda r: r[1])
+            verdict = "PASS" if worst[1] <= RTOL_PASS else "FAIL"
+            failures += verdict == "FAIL"
+            detail = ", ".join(f"{n} {r:.2g}" for n, r, _ in results)
+            print(f"{verdict} {case.name}: max rel error {worst[1]:.2g} {'<=' if verdict == 'PASS' else '>'} "
+                  f"{RTOL_PASS:g} at t = {worst[2]:.6g} s in {worst[0]} ({detail}; {len(times)} samples)")
+    print(f"{len(case_list()) - failures} passed, {failures} failed")
+    return 1 if failures else 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())

@@ -1,0 +1,391 @@
+// The cross-check (verify.hpp): correct closed forms pass over the whole range of time
+// constants and frequencies the tool claims; a closed form that is 1 % wrong fails; a
+// threshold or a window the integrator cannot manage is a FAIL with numbers, never an
+// exception, a hang or a NaN.
+
+#include <catch2/catch.hpp>
+
+#include <cmath>
+#include <filesystem>
+#include <numbers>
+
+#include <fmt/format.h>
+
+#include "circuit_helpers.hpp"
+#include "netfold/parse.hpp"
+#include "netfold/verify.hpp"
+
+using namespace netfold;
+using nftest::Net;
+using nftest::operator+;
+
+namespace {
+
+constexpr double kPi = std::numbers::pi;
+
+// Every number of a report is finite (no NaN reaches the output).
+void require_finite(const VerifyReport& r) {
+  REQUIRE(std::isfinite(r.max_rel_error));
+  REQUIRE(std::isfinite(r.t_at));
+  REQUIRE(std::isfinite(r.integrator_rtol));
+  REQUIRE(std::isfinite(r.integrator_atol));
+  for (const auto& e : r.observables) {
+    REQUIRE(std::isfinite(e.max_abs_error));
+    REQUIRE(std::isfinite(e.max_rel_error));
+    REQUIRE(std::isfinite(e.normalization));
+    REQUIRE(std::isfinite(e.t_at));
+  }
+  for (const auto& v : r.numerical.values)
+    for (double y : v) REQUIRE(std::isfinite(y));
+}
+
+VerifyReport check(const Circuit& c, const SolveOptions& so = {}, const VerifyOptions& vo = {}) {
+  Solution s = solve(c, so);
+  VerifyReport r = verify_closed_form(s, vo);
+  INFO(r.message);
+  for (const auto& n : r.notes) INFO(n);
+  require_finite(r);
+  return r;
+}
+
+// V1 — K1 (closed before t = 0, opens at t_open, shorting R0 until then) — R1 — storage.
+Circuit first_order(bool capacitor, double tau, double omega_tau, bool given_initial) {
+  const double r = 10.0;
+  const double omega = omega_tau / tau;
+  const double f = omega / (2 * kPi);
+  const double window = std::min(5.0 * tau, 20.0 / f);
+  Net n;
+  n.voltage_source("V1", "a", "gnd", nftest::cosine(10.0, f, kPi / 6));
+  n.switch_("K1", "a", "b", {nftest::opens(window / 3)});
+  n.resistor("R0", "a", "b", r);
+  n.resistor("R1", "b", "c", r);
+  std::optional<double> initial = given_initial ? std::optional<double>(0.0) : std::nullopt;
+  if (capacitor)
+    n.capacitor("C1", "c", "gnd", tau / r, initial);
+  else
+    n.inductor("L1", "c", "gnd", tau * r, initial);
+  n.window(0.0, window);
+  return std::move(n).build();
+}
+
+}  // namespace
+
+TEST_CASE("an RC step passes the cross-check, and the message gives the numbers compared", "[verify]") {
+  Net n;
+  n.voltage_source("V1", "a", "gnd", nftest::dc(10.0));
+  n.switch_("K1", "a", "b", {nftest::closes(0.0)});
+  n.resistor("R1", "b", "c", 1e3);
+  n.capacitor("C1", "c", "gnd", 1e-6, 0.0);
+  Circuit c = std::move(n).build();
+  VerifyReport r = check(c);
+  CHECK(r.passed);
+  CHECK(r.max_rel_error < 1e-8);
+  CHECK(r.method == "cvode-bdf");
+  CHECK(r.rtol == 1e-6);
+  CHECK(r.integrator_rtol == 1e-10);
+  CHECK(r.observables.size() == 2);
+  CHECK(r.samples == 4001);
+  CHECK_THAT(r.message, Catch::StartsWith("max rel error ") && Catch::Contains(" <= rtol 1e-06 at t = ") &&
+                            (Catch::EndsWith(" in C1.v") || Catch::EndsWith(" in C1.i")));
+  CHECK(r.stats.steps > 0);
+  CHECK(r.stats.rhs_evals >= r.stats.steps);
+}
+
+TEST_CASE("RL and RC circuits with steps and sinusoids pass", "[verify]") {
+  SECTION("RL step") {
+    Net n;
+    n.voltage_source("V1", "a", "gnd", nftest::step(24.0, 1e-3));
+    n.resistor("R1", "a", "c", 18.0);
+    n.inductor("L1", "c", "gnd", 0.12);
+    CHECK(check(std::move(n).build()).passed);
+  }
+  SECTION("RC sinusoid switched on at a voltage peak") {
+    Net n;
+    n.voltage_source("V1", "a", "gnd", nftest::cosine(169.7, 60.0));
+    n.switch_("K1", "a", "b", {nftest::closes(0.0)});
+    n.resistor("R1", "b", "c", 10.0);
+    n.capacitor("C1", "c", "gnd", 1000e-6, 0.0);
+    n.watch_element("C1", 'i');
+    n.watch_element("R1", 'p');
+    CHECK(check(std::move(n).build()).passed);
+  }
+  SECTION("valve coil with freewheel resistor (the format's example)") {
+    Net n;
+    n.voltage_source("supply", "l", "gnd", nftest::cosine(24.0 * std::sqrt(2.0), 50.0));
+    n.switch_("K1", "l", "a", {nftest::closes(0.0), nftest::opens(35e-3)});
+    n.resistor("coil_r", "a", "b", 18.0);
+    n.inductor("coil_l", "b", "gnd", 0.12);
+    n.resistor("free_r", "a", "gnd", 470.0);
+    n.watch_element("coil_l", 'i');
+    n.watch_node("a");
+    n.watch_element("free_r", 'p');
+    VerifyReport r = check(std::move(n).build());
+    CHECK(r.passed);
+    // The contact is open before t = 0: no source reaches the coil, which rests at 0 A.
+    CHECK(r.numerical.initial_method == InitialStateMethod::dc_operating_point);
+    CHECK(r.numerical.initial_state == 0.0);
+  }
+}
+
+TEST_CASE("a stiff RC (tau = 1 ns) driven at 50 Hz over 100 ms passes", "[verify]") {
+  Net n;
+  n.voltage_source("V1", "a", "gnd", nftest::cosine(169.7, 50.0, -kPi / 2));
+  n.switch_("K1", "a", "b", {nftest::closes(0.0)});
+  n.resistor("R1", "b", "c", 1.0);
+  n.capacitor("C1", "c", "gnd", 1e-9, 0.0);
+  n.window(0.0, 0.1);
+  VerifyReport r = check(std::move(n).build());
+  CHECK(r.passed);
+  // Its current is a difference of two voltages that agree to ωτ = 3e-7: the case that needs
+  // every sample to be a step's end, not an interpolation.
+  INFO("steps " << r.stats.steps << ", rhs " << r.stats.rhs_evals << ", error test failures "
+                << r.stats.error_test_failures);
+  CHECK(r.stats.steps < 20'000);
+}
+
+TEST_CASE("a slow RC (tau = 1000 s) over a 100 ms window passes, from its steady state", "[verify]") {
+  Net n;
+  n.voltage_source("V1", "a", "gnd", nftest::cosine(100.0, 50.0));
+  n.resistor("R1", "a", "c", 1e6);
+  n.capacitor("C1", "c", "gnd", 1e-3);
+  n.switch_("K1", "c", "d", {nftest::closes(10e-3)});
+  n.resistor("R2", "d", "gnd", 1e6);
+  n.window(0.0, 0.1);
+  VerifyReport r = check(std::move(n).build());
+  CHECK(r.passed);
+  CHECK(r.numerical.initial_method == InitialStateMethod::shooting);
+}
+
+TEST_CASE("time constants from 1 ps to 1000 s and omega-tau from 1e-6 to 1e6 all verify", "[verify]") {
+  // source: common practice, no source — a log grid over the claimed range, both storage kinds,
+  // from a given state and from the steady state before t = 0, with one switching event.
+  int cases = 0;
+  double worst = 0.0;
+  for (bool capacitor : {true, false})
+    for (double tau : {1e-12, 1e-9, 1e-6, 1e-3, 1.0, 1e3})
+      for (double wt : {1e-6, 1e-3, 1.0, 1e3, 1e6})
+        for (bool given : {true, false}) {
+          Circuit c = first_order(capacitor, tau, wt, given);
+          VerifyReport r = check(c);
+          INFO((capacitor ? "RC" : "RL") << " tau = " << tau << " s, omega tau = " << wt
+                                         << (given ? ", initial 0" : ", steady state") << ": " << r.message);
+          CHECK(r.passed);
+          worst = std::max(worst, r.max_rel_error);
+          ++cases;
+        }
+  INFO("worst max rel error " << worst);
+  CHECK(cases == 120);
+  CHECK(worst < 1e-6);
+}
+
+TEST_CASE("multi-frequency sources pass, and the steady state before t = 0 comes from shooting", "[verify]") {
+  Net n;
+  n.voltage_source("V1", "a", "gnd",
+                   nftest::dc(2.0) + nftest::cosine(10.0, 50.0) + nftest::cosine(3.0, 150.0, 0.5));
+  n.current_source("I1", "gnd", "c", nftest::cosine(0.05, 60.0, -0.2));
+  n.resistor("R1", "a", "b", 5.0);
+  n.switch_("K1", "b", "c", {nftest::closes(7e-3)}, 0.1);
+  n.resistor("R2", "b", "c", 50.0);
+  n.inductor("L1", "c", "gnd", 20e-3);
+  n.resistor("R3", "c", "gnd", 200.0);
+  n.watch_element("L1", 'i');
+  n.watch_node("c");
+  n.watch_element("R2", 'p');
+  n.window(0.0, 0.1);
+  VerifyReport r = check(std::move(n).build());
+  CHECK(r.passed);
+  CHECK(r.numerical.initial_method == InitialStateMethod::shooting);
+  // 50, 60 and 150 Hz share a period of 100 ms.
+  CHECK_THAT(r.notes.front(), Catch::Contains("shooting over 100 ms"));
+}
+
+TEST_CASE("circuits with a vcvs and a cccs pass", "[verify]") {
+  Net n;
+  n.voltage_source("V1", "a", "gnd", nftest::cosine(10.0, 50.0) + nftest::dc(1.0));
+  n.resistor("R1", "a", "b", 1e3);
+  n.resistor("R3", "b", "gnd", 1e3);
+  n.vcvs("E1", "out", "gnd", 2.0, "b", "gnd");
+  n.switch_("K1", "out", "e", {nftest::closes(2e-3), nftest::opens(9e-3)});
+  n.resistor("R2", "e", "c", 1e3);
+  n.capacitor("C1", "c", "gnd", 1e-6);
+  n.resistor("R5", "c", "gnd", 10e3);
+  n.cccs("F1", "gnd", "d", 5.0, "R2");
+  n.resistor("R4", "d", "gnd", 100.0);
+  n.watch_element("C1", 'v');
+  n.watch_node("d");
+  n.watch_element("R4", 'p');
+  n.window(0.0, 20e-3);
+  VerifyReport r = check(std::move(n).build());
+  CHECK(r.passed);
+}
+
+TEST_CASE("a reclosing contact (several events) passes", "[verify]") {
+  Net n;
+  n.voltage_source("V1", "a", "gnd", nftest::cosine(325.0, 50.0, 0.4));
+  n.switch_("K1", "a", "b",
+            {nftest::closes(0.0), nftest::opens(5e-3), nftest::closes(8e-3), nftest::opens(12e-3),
+             nftest::closes(15e-3), nftest::opens(31e-3)},
+            0.05);
+  n.resistor("R1", "b", "c", 4.0);
+  n.inductor("L1", "c", "gnd", 30e-3, 0.0);
+  n.resistor("Rf", "b", "gnd", 100.0);
+  n.watch_element("L1", 'i');
+  n.watch_element("K1", 'i');
+  n.watch_element("Rf", 'p');
+  n.window(0.0, 60e-3);
+  VerifyReport r = check(std::move(n).build());
+  CHECK(r.passed);
+  CHECK(r.stats.restarts == 6);
+}
+
+TEST_CASE("an inductor held at zero while its loop is open passes, with no NaN from zero observables", "[verify]") {
+  Net n;
+  n.voltage_source("V1", "a", "gnd", nftest::dc(10.0));
+  n.switch_("K1", "a", "b", {nftest::closes(2e-3)});
+  n.resistor("R1", "b", "c", 10.0);
+  n.inductor("L1", "c", "gnd", 10e-3, 0.0);
+  n.resistor("R9", "z", "gnd", 1e3);  // a dead node: identically 0 V
+  n.watch_element("L1", 'i');
+  n.watch_node("z");
+  n.watch_element("R9", 'i');
+  n.window(0.0, 10e-3);
+  Circuit c = std::move(n).build();
+  Solution s = solve(c);
+  REQUIRE(s.segments()[0].mode == PortMode::held_at_zero);
+  VerifyReport r = check(c);
+  CHECK(r.passed);
+  // @z and R9.i are identically zero in both forms: their error is exactly 0, not 0/0.
+  CHECK(r.observables[1].max_rel_error == 0.0);
+  CHECK(r.observables[2].max_rel_error == 0.0);
+}
+
+TEST_CASE("a closed form whose time constants are 1 % off fails the cross-check", "[verify]") {
+  // SolveOptions::testing_tau_scale multiplies every segment's τ of the closed form only.
+  Net rc;
+  rc.voltage_source("V1", "a", "gnd", nftest::dc(10.0));
+  rc.switch_("K1", "a", "b", {nftest::closes(0.0)});
+  rc.resistor("R1", "b", "c", 1e3);
+  rc.capacitor("C1", "c", "gnd", 1e-6, 0.0);
+  Circuit c1 = std::move(rc).build();
+  Net rl;
+  rl.voltage_source("V1", "a", "gnd", nftest::cosine(34.0, 50.0));
+  rl.switch_("K1", "a", "b", {nftest::closes(0.0), nftest::opens(35e-3)});
+  rl.resistor("R1", "b", "c", 18.0);
+  rl.inductor("L1", "c", "gnd", 0.12);
+  rl.resistor("Rf", "b", "gnd", 470.0);
+  Circuit c2 = std::move(rl).build();
+  for (const Circuit* c : {&c1, &c2})
+    for (double scale : {1.01, 0.99}) {
+      SolveOptions so;
+      so.testing_tau_scale = scale;
+      VerifyReport r = check(*c, so);
+      INFO("tau × " << scale << ": " << r.message);
+      CHECK_FALSE(r.passed);
+      CHECK(r.max_rel_error > 1e-3);
+      CHECK_THAT(r.message, Catch::StartsWith("max rel error ") && Catch::Contains(" > rtol 1e-06 at t = "));
+    }
+}
+
+TEST_CASE("a threshold the integrator cannot reach is a FAIL, not an exception", "[verify]") {
+  Net n;
+  n.voltage_source("V1", "a", "gnd", nftest::cosine(10.0, 50.0));
+  n.resistor("R1", "a", "c", 1e3);
+  n.capacitor("C1", "c", "gnd", 10e-6);
+  Circuit c = std::move(n).build();
+  VerifyOptions vo;
+  vo.rtol = 1e-17;
+  VerifyReport r;
+  REQUIRE_NOTHROW(r = check(c, {}, vo));
+  CHECK_FALSE(r.passed);
+  CHECK(r.integrator_rtol == 1e-13);
+  CHECK_THAT(r.message, Catch::Contains(" > rtol 1e-17 at t = "));
+}
+
+TEST_CASE("10^6 periods in the window end in a FAIL with the step budget named, not a hang", "[verify]") {
+  Net n;
+  n.voltage_source("V1", "a", "gnd", nftest::cosine(10.0, 1e6));
+  n.switch_("K1", "a", "b", {nftest::closes(0.0)});
+  n.resistor("R1", "b", "c", 10.0);
+  n.capacitor("C1", "c", "gnd", 1e-6, 0.0);
+  n.window(0.0, 1.0);
+  Circuit c = std::move(n).build();
+  VerifyOptions vo;
+  vo.max_steps = 50'000;  // the default, 5e6, ends the same way after a few seconds
+  VerifyReport r = check(c, {}, vo);
+  CHECK_FALSE(r.passed);
+  CHECK_THAT(r.message, Catch::StartsWith("numerical integration did not finish: the step budget of 50000 CVODE "
+                                          "steps was spent at t = "));
+  CHECK_THAT(r.message, Catch::Contains("1e+06 periods of the fastest sinusoid"));
+  CHECK(r.stats.steps <= 50'000);
+}
+
+TEST_CASE("the solve options a sweep changes are honoured by the numerical path", "[verify]") {
+  Net n;
+  ElementId v1 = n.voltage_source("V1", "a", "gnd", nftest::cosine(100.0, 50.0) + nftest::cosine(20.0, 250.0, 1.0));
+  ElementId k1 = n.switch_("K1", "a", "b", {nftest::closes(1e-3), nftest::opens(14e-3)});
+  n.resistor("R1", "b", "c", 10.0);
+  n.capacitor("C1", "c", "gnd", 200e-6);
+  n.resistor("R2", "c", "gnd", 1e3);
+  n.window(0.0, 40e-3);
+  Circuit c = std::move(n).build();
+  SolveOptions so;
+  so.source_phase = {v1, -1.2};
+  so.first_closes = {k1, 3.3e-3};
+  so.initial_state = 5.0;
+  VerifyReport r = check(c, so);
+  CHECK(r.passed);
+  CHECK(r.numerical.initial_method == InitialStateMethod::given);
+  CHECK(r.numerical.initial_state == 5.0);
+}
+
+TEST_CASE("a window that starts later is compared on its own samples", "[verify]") {
+  Net n;
+  n.voltage_source("V1", "a", "gnd", nftest::cosine(10.0, 50.0));
+  n.switch_("K1", "a", "b", {nftest::closes(5e-3)});
+  n.resistor("R1", "b", "c", 100.0);
+  n.capacitor("C1", "c", "gnd", 10e-6, 1.0);
+  n.window(10e-3, 20e-3);
+  Circuit c = std::move(n).build();
+  VerifyReport r = check(c);
+  CHECK(r.passed);
+  CHECK(r.numerical.times.front() == 10e-3);
+  CHECK(r.samples == 4001);
+}
+
+TEST_CASE("a non-positive threshold is an input error", "[verify]") {
+  Net n;
+  n.voltage_source("V1", "a", "gnd", nftest::dc(1.0));
+  n.resistor("R1", "a", "c", 1.0);
+  n.capacitor("C1", "c", "gnd", 1.0, 0.0);
+  Circuit c = std::move(n).build();
+  Solution s = solve(c);
+  VerifyOptions vo;
+  vo.rtol = 0.0;
+  CHECK_THROWS_AS(verify_closed_form(s, vo), InputError);
+  vo.rtol = std::nan("");
+  CHECK_THROWS_AS(verify_closed_form(s, vo), InputError);
+}
+
+TEST_CASE("every example in netlists/ passes, and fails with its time constants 1 % off", "[verify]") {
+  namespace fs = std::filesystem;
+  int files = 0;
+  for (const auto& entry : fs::directory_iterator(fs::path(NETFOLD_SOURCE_DIR) / "netlists")) {
+    if (entry.path().extension() != ".nf") continue;
+    Circuit c = parse_netlist_file(entry.path());
+    VerifyReport r = check(c);
+    INFO(entry.path().filename().string() << ": " << r.message);
+    CHECK(r.passed);
+    Solution s = solve(c);
+    bool has_time_constant = false;
+    for (const auto& seg : s.segments()) has_time_constant |= std::isfinite(seg.tau) && seg.tau > 0.0;
+    if (has_time_constant) {
+      SolveOptions so;
+      so.testing_tau_scale = 1.01;
+      VerifyReport wrong = check(c, so);
+      INFO("with tau x 1.01: " << wrong.message);
+      CHECK_FALSE(wrong.passed);
+    }
+    ++files;
+  }
+  CHECK(files > 0);
+}
