@@ -68,6 +68,7 @@ std::size_t code_point_size(std::string_view s, std::size_t i) {
 std::string describe_character(std::string_view s, std::size_t i) {
   char32_t cp = code_point_at(s, i);
   if (cp < 0x20 || cp == 0x7F) return fmt::format("unexpected control character U+{:04X}", static_cast<unsigned>(cp));
+  if (cp == '\'') return "unexpected character \"'\"";
   return fmt::format("unexpected character '{}'", s.substr(i, code_point_size(s, i)));
 }
 

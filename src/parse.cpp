@@ -66,6 +66,18 @@ struct Text {
   std::array<std::string_view, 5> parts{};
 };
 
+// Words with a meaning of their own in the format. After a bare number, any other word is
+// likely a misspelt unit (`10 kOhm`), and the message says it is not one.
+constexpr auto kKeywords = std::to_array<std::string_view>({
+    "resistor", "capacitor", "inductor", "voltage-source", "current-source", "switch", "vcvs", "vccs", "ccvs",
+    "cccs", "rated", "pulse-rated", "initial", "closes", "opens", "on", "off", "rated-i2t", "gain", "sense", "dc",
+    "cosine", "sine", "step", "at", "phase", "title", "ground", "window", "resolution", "watch", "sweep", "expect",
+    "golden-tolerance", "tau", "rth", "vth", "peak", "max", "min", "final", "amplitude", "energy", "i2t", "worst"});
+
+bool is_keyword(std::string_view word) {
+  return std::find(kKeywords.begin(), kKeywords.end(), word) != kKeywords.end();
+}
+
 bool is_word_byte(char c) {
   return (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || (c >= '0' && c <= '9') || c == '_' ||
          (static_cast<unsigned char>(c) & 0x80) != 0;
@@ -390,7 +402,7 @@ class Reader {
     // A word right after a bare number was read as its unit if it could be one.
     bool after_bare_number = &t == &toks_[at_] && at_ > 0 && toks_[at_ - 1].kind == TokenKind::number &&
                              toks_[at_ - 1].suffix().empty();
-    if (after_bare_number) return fmt::format("found '{}', which is not a unit", word);
+    if (after_bare_number && !is_keyword(t.text)) return fmt::format("found '{}', which is not a unit", word);
     return fmt::format("found '{}'", word);
   }
 
@@ -551,7 +563,7 @@ class FileParser : Reader {
     std::optional<NameRef> element;
   };
 
-  // Lookups during resolution, from the parser's own tables.
+  // Lookups during resolution: the builder's tables, and the names met on lines that failed.
   class ParseScope : public Scope {
    public:
     explicit ParseScope(const FileParser& p) : p_(p) {}

@@ -1298,3 +1298,11 @@ TEST_CASE("a 100000-element file parses with every element in place", "[parse]")
   CHECK(mid.loc.line == 50002);
   CHECK(c.watches().at(0).element == kCount - 1);
 }
+
+TEST_CASE("a keyword after a bare number is not called a misspelt unit", "[parse]") {
+  REQUIRE_PARSE_ERROR(kBase + "R1: resistor a -> gnd, 1k rated 1 W\n", 2, 27, "expected ',' or end of line, found 'rated'");
+  auto errors = parse_errors(kBase + "R1: resistor a -> gnd, 10 rated 1 W\n");
+  REQUIRE(errors.size() == 1);
+  CHECK(errors[0].message == "expected ',' or end of line, found 'rated'");
+  REQUIRE_PARSE_ERROR(kBase + "R1: resistor a -> gnd, 'x'\n", 2, 24, "unexpected character \"'\"");
+}
