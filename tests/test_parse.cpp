@@ -1211,6 +1211,74 @@ TEST_CASE("every file of the error gallery fails with the error it names", "[par
   CHECK(count >= 20);
 }
 
+// The format description's own example ("## Example"), copied verbatim into netlists/valve_coil.nf.
+TEST_CASE("the example of the format description reads field by field", "[parse]") {
+  Circuit c = parse_netlist_file("netlists/valve_coil.nf");
+  CHECK(c.title() == "Valve coil with freewheel resistor");
+  CHECK(node_name(c, c.ground()) == "n");
+  REQUIRE(c.elements().size() == 5);
+
+  const Element& supply = element(c, "supply");
+  CHECK(supply.kind == ElementKind::voltage_source);
+  CHECK(node_name(c, supply.pos) == "l");
+  CHECK(node_name(c, supply.neg) == "n");
+  REQUIRE(supply.waveform.sinusoids.size() == 1);
+  // source: definition of the rms value of a sinusoid, peak = rms × √2 (from memory)
+  CHECK(supply.waveform.sinusoids[0].amplitude == near(24 * std::sqrt(2.0)));
+  CHECK(supply.waveform.sinusoids[0].frequency == near(50));
+  CHECK(supply.waveform.sinusoids[0].phase == 0);
+  CHECK(supply.waveform.dc == 0);
+
+  const Element& k1 = element(c, "K1");
+  CHECK(k1.kind == ElementKind::switch_);
+  REQUIRE(k1.events.size() == 2);
+  CHECK(k1.events[0].closes);
+  CHECK(k1.events[0].time == 0);
+  CHECK_FALSE(k1.events[1].closes);
+  CHECK(k1.events[1].time == near(35e-3));
+  CHECK_FALSE(k1.closed_before_zero());
+  REQUIRE(k1.ratings.size() == 1);
+  CHECK(k1.ratings[0].kind == RatingKind::peak_current);
+  CHECK(k1.ratings[0].limit == near(3));
+
+  CHECK(element(c, "coil_r").value == near(18));
+  const Element& coil = element(c, "coil_l");
+  CHECK(coil.kind == ElementKind::inductor);
+  CHECK(coil.value == near(0.120));
+  CHECK_FALSE(coil.initial.has_value());
+  CHECK(coil.ratings.at(0).limit == near(2));
+  const Element& free_r = element(c, "free_r");
+  CHECK(free_r.value == near(470));
+  CHECK(free_r.ratings.at(0).kind == RatingKind::mean_power);
+  CHECK(free_r.ratings.at(0).limit == near(0.5));
+  CHECK(c.storage_elements() == std::vector<ElementId>{*c.find_element("coil_l")});
+
+  REQUIRE(c.watches().size() == 2);
+  CHECK(c.watches()[0].text == "coil_l.i");
+  CHECK(c.watches()[1].text == "@a");
+  REQUIRE(c.sweeps().size() == 1);
+  CHECK(c.sweeps()[0].target == SweepTarget::source_phase);
+  CHECK(c.sweeps()[0].from == near(-kPi));
+  CHECK(c.sweeps()[0].to == near(kPi));
+
+  const auto& k = c.claims();
+  REQUIRE(k.size() == 4);
+  CHECK(k[0].quantity == ClaimQuantity::tau);
+  CHECK(k[0].value == near(6.67e-3));
+  CHECK(k[0].tolerance == near(1));
+  CHECK(k[0].tolerance_is_percent);
+  CHECK(k[0].text == "tau = 6.67 ms \xC2\xB1 1%");
+  CHECK(k[1].segment == 2);
+  CHECK(k[1].value == near(246e-6));
+  CHECK(k[2].quantity == ClaimQuantity::peak);
+  CHECK(k[2].op == CompareOp::lt);
+  CHECK(k[2].value == near(1000));
+  CHECK(k[3].quantity == ClaimQuantity::worst_peak);
+  CHECK(k[3].observable.text == "coil_l.i");
+  CHECK(k[3].value == near(2));
+  CHECK(c.window() == std::nullopt);
+}
+
 // =============================================================================================
 // Robustness
 // =============================================================================================
