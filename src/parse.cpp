@@ -585,6 +585,7 @@ class FileParser : Reader {
   void report(SourceLoc loc, std::string message) { errors_.push_back({loc, std::move(message)}); }
 
   void parse_statement();
+  bool parse_directive(const Token& keyword);
   void parse_element();
   NodeId take_node();
   Waveform parse_waveform(const KindInfo& info);
@@ -692,21 +693,24 @@ void FileParser::parse_statement() {
     return;
   }
   const Token& first = take();
-  if (first.kind == TokenKind::word) {
-    std::string_view w = first.text;
-    if (w == "title") parse_title(first);
-    else if (w == "ground") parse_ground(first);
-    else if (w == "window") parse_window(first);
-    else if (w == "resolution") parse_resolution(first);
-    else if (w == "watch") parse_watch();
-    else if (w == "sweep") parse_sweep();
-    else if (w == "expect") parse_expect(first);
-    else if (w == "golden-tolerance") parse_golden_tolerance(first);
-    else w = {};
-    if (!w.empty()) return;
-  }
+  if (first.kind == TokenKind::word && parse_directive(first)) return;
   fail(first.loc, fmt::format("expected an element (NAME: kind a -> b, value) or a directive, found '{}'",
                               text_as_written(first)));
+}
+
+// Reads the directive `keyword` begins; false when the word is not a directive.
+bool FileParser::parse_directive(const Token& keyword) {
+  std::string_view w = keyword.text;
+  if (w == "title") parse_title(keyword);
+  else if (w == "ground") parse_ground(keyword);
+  else if (w == "window") parse_window(keyword);
+  else if (w == "resolution") parse_resolution(keyword);
+  else if (w == "watch") parse_watch();
+  else if (w == "sweep") parse_sweep();
+  else if (w == "expect") parse_expect(keyword);
+  else if (w == "golden-tolerance") parse_golden_tolerance(keyword);
+  else return false;
+  return true;
 }
 
 // After a failed element line, remember its name and nodes, so that later references to them
