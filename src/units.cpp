@@ -142,6 +142,8 @@ Quantity parse_quantity_argument(std::string_view text, Dimension expected, std:
     throw argument_error(option, fmt::format("'{}' is {}, but {} is needed here", text, dimension_noun(dim),
                                              dimension_noun(expected)));
   }
+  if (unit->rms)
+    throw argument_error(option, fmt::format("'{}': Vrms and Arms only go with the amplitude of a sinusoid", text));
   double scale = unit->multiplier;
   // A bare angle is in degrees, as it is in the file format.
   if (expected == Dimension::angle && !unit->dimension) scale *= kDegree;

@@ -48,14 +48,14 @@ std::optional<UnitSuffix> parse_unit_suffix(std::string_view text);
 
 /// A number with its unit, as parsed from the command line (for example `--at 12ms`).
 struct Quantity {
-  double value = 0.0;  ///< in SI base units; rms already converted to peak when allowed
+  double value = 0.0;  ///< in SI base units
   Dimension dimension = Dimension::ratio;
-  bool rms = false;    ///< written as Vrms/Arms
+  bool rms = false;    ///< always false: an rms unit is refused outside sinusoid amplitudes
 };
 
 /// Parses `TEXT` (a number, optional space, optional prefix and unit) as `expected`.
-/// A bare number takes `expected`. Throws InputError (exit 2) naming `option` when the
-/// text is not a value or its unit does not fit.
+/// A bare number takes `expected`; a bare angle is in degrees. Throws InputError (exit 2)
+/// naming `option` when the text is not a value, its unit does not fit, or it is Vrms/Arms.
 Quantity parse_quantity_argument(std::string_view text, Dimension expected, std::string_view option);
 
 /// Engineering notation with an SI prefix and `digits` significant digits:
