@@ -127,9 +127,12 @@ TEST_CASE("a command-line quantity reads number and unit, with or without a spac
   CHECK(parse_quantity_argument("4.7 k\xCE\xA9", Dimension::resistance, "--r").value == near(4700));
   CHECK(parse_quantity_argument("-2.5e-3 A", Dimension::current, "--i").value == near(-2.5e-3));
   CHECK(parse_quantity_argument("+5", Dimension::voltage, "--v").value == near(5));
-  Quantity q = parse_quantity_argument("230 Vrms", Dimension::voltage, "--v");
-  CHECK(q.rms);
+  Quantity q = parse_quantity_argument("230 V", Dimension::voltage, "--v");
+  CHECK_FALSE(q.rms);
   CHECK(q.dimension == Dimension::voltage);
+  // No command-line value is a sinusoid amplitude, so an rms unit has no meaning there.
+  CHECK_THROWS_WITH(parse_quantity_argument("230 Vrms", Dimension::voltage, "--v"),
+                    Catch::Contains("Vrms and Arms only go with the amplitude of a sinusoid"));
 }
 
 // "A bare number takes the unit that its place expects." (decision: a bare angle is in degrees)
