@@ -1,0 +1,380 @@
+// Tests of `check`: finding the files, sharding, a broken file reported without stopping the
+// run, error-gallery files, determinism over threads, JUnit XML read back by a real XML
+// parser (Python's xml.etree), and the built binary run on the project's own library.
+#include <catch2/catch.hpp>
+
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <algorithm>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <set>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include <fmt/format.h>
+
+#include "netfold/check.hpp"
+#include "netfold/diagnostics.hpp"
+
+using namespace netfold;
+namespace fs = std::filesystem;
+
+namespace {
+
+class TempDir {
+ public:
+  TempDir() {
+    static int counter = 0;
+    path_ = fs::temp_directory_path() / fmt::format("netfold_check_{}_{}", ::getpid(), ++counter);
+    fs::remove_all(path_);
+    fs::create_directories(path_);
+  }
+  ~TempDir() {
+    std::error_code ec;
+    fs::remove_all(path_, ec);
+  }
+  const fs::path& path() const { return path_; }
+
+ private:
+  fs::path path_;
+};
+
+void write_file(const fs::path& p, const std::string& text) {
+  fs::create_directories(p.parent_path());
+  std::ofstream out(p, std::ios::binary);
+  out << text;
+}
+
+std::string read_file(const fs::path& p) {
+  std::ifstream in(p, std::ios::binary);
+  std::ostringstream s;
+  s << in.rdbuf();
+  return s.str();
+}
+
+// An RC of 1 kohm and 1 µF (tau = 1 ms) with one claim that holds and one of `extra`.
+std::string rc(const std::string& extra = "") {
+  return "V1: voltage-source s -> gnd, dc 5 V\n"
+         "K1: switch s -> a, closes at 0 s\n"
+         "R1: resistor a -> b, 1 kohm\n"
+         "C1: capacitor b -> gnd, 1 uF\n"
+         "expect tau = 1 ms ± 1%\n" +
+         extra;
+}
+
+// Runs a shell command; returns its exit status (-1 when it did not exit normally).
+int run(const std::string& command) {
+  int status = std::system(command.c_str());
+  if (status == -1 || !WIFEXITED(status)) return -1;
+  return WEXITSTATUS(status);
+}
+
+std::string shell_quote(const std::string& s) {
+  std::string out = "'";
+  for (char c : s) out += c == '\'' ? std::string("'\\''") : std::string(1, c);
+  return out + "'";
+}
+
+std::vector<std::string> lines_of(const std::string& text) {
+  std::vector<std::string> lines;
+  std::istringstream in(text);
+  for (std::string line; std::getline(in, line);) lines.push_back(line);
+  return lines;
+}
+
+std::string text_of(const CheckReport& report) {
+  std::ostringstream out;
+  write_check_text(out, report);
+  return out.str();
+}
+
+}  // namespace
+
+TEST_CASE("netlists are found recursively, each once, sorted by path", "[check]") {
+  TempDir dir;
+  write_file(dir.path() / "b.nf", rc());
+  write_file(dir.path() / "a.nf", rc());
+  write_file(dir.path() / "sub" / "deeper" / "c.nf", rc());
+  write_file(dir.path() / "notes.txt", "not a netlist");
+  write_file(dir.path() / "a.golden.csv", "t\n0\n");
+  const std::string d = dir.path().generic_string();
+  std::vector<fs::path> files = find_netlists({d, d + "/a.nf", d + "/sub/"});
+  REQUIRE(files.size() == 3);
+  CHECK(files[0].generic_string() == d + "/a.nf");
+  CHECK(files[1].generic_string() == d + "/b.nf");
+  CHECK(files[2].generic_string() == d + "/sub/deeper/c.nf");
+}
+
+TEST_CASE("a path that does not exist or holds no netlist is bad input", "[check]") {
+  TempDir dir;
+  try {
+    find_netlists({(dir.path() / "missing").string()});
+    FAIL("no error");
+  } catch (const InputError& e) {
+    CHECK(e.exit_code() == ExitCode::bad_input);
+    CHECK(std::string(e.what()).find("does not exist") != std::string::npos);
+  }
+  write_file(dir.path() / "readme.txt", "x");
+  CHECK_THROWS_AS(find_netlists({dir.path().string()}), InputError);
+}
+
+TEST_CASE("the shard argument is K/N with 1 <= K <= N", "[check]") {
+  Shard s = parse_shard_argument("2/5");
+  CHECK(s.index == 2);
+  CHECK(s.count == 5);
+  CHECK(parse_shard_argument("1/1").count == 1);
+  for (const char* bad : {"0/3", "4/3", "3", "a/b", "1/0", "-1/2", "1/2/3", "1 /2", ""}) {
+    INFO(bad);
+    CHECK_THROWS_AS(parse_shard_argument(bad), InputError);
+  }
+}
+
+TEST_CASE("the shards of a file list cover every file exactly once", "[check]") {
+  std::vector<fs::path> files;
+  for (int k = 0; k < 23; ++k) files.emplace_back(fmt::format("lib/circuit_{:02}.nf", k));
+  for (int n = 1; n <= 30; ++n) {
+    INFO("N = " << n);
+    std::multiset<std::string> seen;
+    std::size_t smallest = files.size(), largest = 0;
+    for (int k = 1; k <= n; ++k) {
+      std::vector<fs::path> shard = select_shard(files, Shard{k, n});
+      for (const auto& f : shard) seen.insert(f.generic_string());
+      smallest = std::min(smallest, shard.size());
+      largest = std::max(largest, shard.size());
+    }
+    // The union is every file and no file is in two shards (pairwise disjoint).
+    CHECK(seen.size() == files.size());
+    for (const auto& f : files) CHECK(seen.count(f.generic_string()) == 1);
+    // Round-robin keeps the shards within one file of each other.
+    CHECK(largest - smallest <= 1);
+  }
+}
+
+TEST_CASE("a broken file is reported with its diagnostic and the other files still run", "[check]") {
+  TempDir dir;
+  write_file(dir.path() / "a_good.nf", rc());
+  write_file(dir.path() / "b_broken.nf", "V1: voltage-source s -> gnd, dc 5 V\nR1: resistor s gnd, 1 kohm\n");
+  write_file(dir.path() / "c_false.nf", rc("expect peak C1.v < 4 V\n"));
+  std::vector<fs::path> files = find_netlists({dir.path().string()});
+  REQUIRE(files.size() == 3);
+  CheckReport report = check_files(files, {});
+  REQUIRE(report.files.size() == 3);
+
+  const FileResult& broken = report.files[1];
+  REQUIRE(broken.cases.size() == 1);
+  CHECK(broken.cases[0].kind == CaseKind::parse);
+  CHECK_FALSE(broken.cases[0].passed);
+  CHECK(broken.cases[0].is_error());
+  CHECK(broken.cases[0].location == broken.path + ":2:16");
+  CHECK(broken.cases[0].message.find("does not parse: expected '->'") == 0);
+  CHECK(broken.errors() == 1);
+
+  // The files around it ran: one claim passes, and a false claim (5 V charge, claimed < 4 V) fails.
+  CHECK(report.files[0].cases.size() == 1);
+  CHECK(report.files[0].cases[0].passed);
+  REQUIRE(report.files[2].cases.size() == 2);
+  CHECK(report.files[2].cases[0].passed);
+  CHECK_FALSE(report.files[2].cases[1].passed);
+  CHECK(report.files[2].failures() == 1);
+  CHECK(report.passed() == 2);
+  CHECK(report.failed() == 2);
+
+  std::vector<std::string> lines = lines_of(text_of(report));
+  REQUIRE(lines.size() == 5);
+  CHECK(lines[0].rfind("PASS " + report.files[0].path + ":5: tau = 1 ms ± 1% — computed 1 ms", 0) == 0);
+  CHECK(lines[1].rfind("FAIL " + broken.path + ":2:16: parse — does not parse", 0) == 0);
+  CHECK(lines[3].rfind("FAIL " + report.files[2].path + ":6: peak C1.v < 4 V — computed", 0) == 0);
+  CHECK(lines[4] == "2 passed, 2 failed");
+}
+
+TEST_CASE("a circuit that parses but does not solve fails its claims with the reason", "[check]") {
+  TempDir dir;
+  // Two storage elements: netfold solves circuits with one.
+  write_file(dir.path() / "two.nf", rc("C2: capacitor a -> gnd, 1 uF\n"));
+  FileResult r = check_file(dir.path() / "two.nf", false);
+  REQUIRE(r.cases.size() == 2);
+  CHECK(r.cases[0].kind == CaseKind::solve);
+  CHECK(r.cases[0].is_error());
+  CHECK(r.cases[0].message.find("does not solve: C2 is a second storage element") == 0);
+  CHECK(r.cases[1].kind == CaseKind::claim);
+  CHECK_FALSE(r.cases[1].passed);
+  CHECK(r.cases[1].message.find("not evaluated: the circuit does not solve") == 0);
+}
+
+TEST_CASE("error-gallery files pass when they are refused as their first line says", "[check]") {
+  TempDir dir;
+  const fs::path d = dir.path();
+  write_file(d / "refused.nf", "# expect-error\nR1: resistor a gnd, 1 kohm\n");
+  write_file(d / "refused_text.nf", "# expect-error: expected '->'\nR1: resistor a gnd, 1 kohm\n");
+  write_file(d / "wrong_text.nf", "# expect-error: unknown unit\nR1: resistor a gnd, 1 kohm\n");
+  write_file(d / "positioned.nf", "# error 2:16: expected '->'\nR1: resistor a gnd, 1 kohm\n");
+  write_file(d / "wrong_position.nf", "# error 2:3: expected '->'\nR1: resistor a gnd, 1 kohm\n");
+  write_file(d / "accepted.nf", "# expect-error\n" + rc());
+  write_file(d / "unsolvable.nf", "# expect-error: second storage element\n" + rc("C2: capacitor a -> gnd, 1 uF\n"));
+  auto only = [&](const char* name) {
+    FileResult r = check_file(d / name, false);
+    REQUIRE(r.cases.size() == 1);
+    INFO(r.cases[0].message);
+    CHECK(r.cases[0].kind == CaseKind::refusal);
+    return r.cases[0];
+  };
+  CHECK(only("refused.nf").passed);
+  CHECK(only("refused_text.nf").passed);
+  CHECK_FALSE(only("wrong_text.nf").passed);
+  CaseResult positioned = only("positioned.nf");
+  CHECK(positioned.passed);
+  CHECK(positioned.location == (d / "positioned.nf").generic_string() + ":2:16");
+  CaseResult wrong = only("wrong_position.nf");
+  CHECK_FALSE(wrong.passed);
+  CHECK(wrong.message.find("expected at 2:3 'expected '->'', got 2:16") != std::string::npos);
+  CaseResult accepted = only("accepted.nf");
+  CHECK_FALSE(accepted.passed);
+  CHECK(accepted.message.find("parses and solves") != std::string::npos);
+  CHECK(only("unsolvable.nf").passed);
+}
+
+TEST_CASE("the report is the same whatever the number of threads", "[check]") {
+  TempDir dir;
+  for (int k = 0; k < 12; ++k)
+    write_file(dir.path() / fmt::format("f{:02}.nf", k),
+               k % 5 == 3 ? std::string("broken line\n") : rc(fmt::format("expect final C1.v > {} V\n", k * 0.5)));
+  std::vector<fs::path> files = find_netlists({dir.path().string()});
+  CheckOptions one;
+  one.jobs = 1;
+  CheckOptions many;
+  many.jobs = 4;
+  std::vector<std::string> order;
+  many.on_file = [&](const FileResult& f) { order.push_back(f.path); };
+  std::size_t progress_calls = 0;
+  many.on_progress = [&](std::size_t done, std::size_t total) {
+    ++progress_calls;
+    CHECK(done <= total);
+  };
+  CheckReport a = check_files(files, one);
+  CheckReport b = check_files(files, many);
+  CHECK(text_of(a) == text_of(b));
+  CHECK(b.jobs == 4);
+  CHECK(a.jobs == 1);
+  CHECK(progress_calls == files.size());
+  // Files are handed to on_file in file order, each once.
+  REQUIRE(order.size() == files.size());
+  for (std::size_t k = 0; k < files.size(); ++k) CHECK(order[k] == files[k].generic_string());
+}
+
+TEST_CASE("text for XML is escaped and made valid UTF-8", "[check]") {
+  CHECK(xml_escape("a < b && c > \"d\" 'e'") == "a &lt; b &amp;&amp; c &gt; &quot;d&quot; &apos;e&apos;");
+  CHECK(xml_escape("µs ± 1%") == "µs ± 1%");
+  CHECK(xml_escape("bad \xB5 byte") == "bad \xEF\xBF\xBD byte");
+  CHECK(xml_escape(std::string("nul\0x", 5)) == "nul\xEF\xBF\xBDx");
+  CHECK(xml_escape("line\nbreak") == "line&#10;break");
+  // An overlong encoding of '/' is not valid UTF-8.
+  CHECK(xml_escape("\xC0\xAF") == "\xEF\xBF\xBD\xEF\xBF\xBD");
+}
+
+TEST_CASE("the JUnit report reads back with a real XML parser with the right structure and counts", "[check]") {
+  if (run("/usr/bin/python3 -c 'import xml.etree.ElementTree' > /dev/null 2>&1") != 0) {
+    WARN("python3 with xml.etree is not available: the JUnit XML was not parsed");
+    return;
+  }
+  TempDir dir;
+  write_file(dir.path() / "a.nf", rc("expect peak C1.v < 4 V  # false on purpose\nexpect final C1.v > 4 V\n"));
+  write_file(dir.path() / "b.nf", "V1: voltage-source s -> gnd, dc 5 V\nR1: resistor s gnd, 1 kohm\n");
+  // A file that is not UTF-8: its diagnostic echoes the bad byte, which must not break the XML.
+  write_file(dir.path() / "c.nf", "title \"caf\xE9\"\nR1: resistor a -> gnd, 1 kohm & more\n");
+  write_file(dir.path() / "d.nf", rc());
+  CheckReport report = check_files(find_netlists({dir.path().string()}), {});
+  const fs::path xml = dir.path() / "report.xml";
+  write_file(xml, junit_xml(report));
+
+  const fs::path script = dir.path() / "read_junit.py";
+  write_file(script,
+             "import sys, xml.etree.ElementTree as E\n"
+             "root = E.parse(sys.argv[1]).getroot()\n"
+             "assert root.tag == 'testsuites', root.tag\n"
+             "suites = root.findall('testsuite')\n"
+             "totals = [0, 0, 0]\n"
+             "for s in suites:\n"
+             "    cases = s.findall('testcase')\n"
+             "    assert int(s.get('tests')) == len(cases)\n"
+             "    f = sum(1 for c in cases if c.find('failure') is not None)\n"
+             "    e = sum(1 for c in cases if c.find('error') is not None)\n"
+             "    assert int(s.get('failures')) == f and int(s.get('errors')) == e\n"
+             "    float(s.get('time'))\n"
+             "    for c in cases:\n"
+             "        assert c.get('classname') == s.get('name') and c.get('name')\n"
+             "        float(c.get('time'))\n"
+             "        for x in c.findall('failure') + c.findall('error'):\n"
+             "            assert x.get('message')\n"
+             "    totals = [totals[0] + len(cases), totals[1] + f, totals[2] + e]\n"
+             "assert [int(root.get(k)) for k in ('tests', 'failures', 'errors')] == totals\n"
+             "names = [c.get('name') for c in root.iter('testcase')]\n"
+             "print(len(suites), *totals, int('peak C1.v < 4 V' in names))\n");
+  const fs::path out = dir.path() / "counts.txt";
+  REQUIRE(run(fmt::format("/usr/bin/python3 {} {} > {}", shell_quote(script.string()), shell_quote(xml.string()),
+                          shell_quote(out.string()))) == 0);
+  std::size_t tests = 0, failures = 0, errors = 0;
+  for (const auto& f : report.files) {
+    tests += f.cases.size();
+    failures += f.failures();
+    errors += f.errors();
+  }
+  // a: 3 claims (1 false), b and c: a parse error each, d: 1 claim.
+  CHECK(tests == 6);
+  CHECK(failures == 1);
+  CHECK(errors == 2);
+  CHECK(read_file(out) == fmt::format("4 {} {} {} 1\n", tests, failures, errors));
+}
+
+TEST_CASE("netfold check passes on the project's circuit library", "[check]") {
+  TempDir dir;
+  const fs::path out = dir.path() / "out.txt";
+  const fs::path xml = dir.path() / "library.xml";
+  int status = run(fmt::format("{} check netlists/ --junit {} > {} 2>&1", shell_quote(NETFOLD_BINARY),
+                               shell_quote(xml.string()), shell_quote(out.string())));
+  std::string text = read_file(out);
+  INFO(text);
+  CHECK(status == 0);
+  std::vector<std::string> lines = lines_of(text);
+  REQUIRE_FALSE(lines.empty());
+  CHECK(lines.back().find(" passed, 0 failed") != std::string::npos);
+  CHECK(std::none_of(lines.begin(), lines.end(), [](const std::string& l) { return l.rfind("FAIL", 0) == 0; }));
+  CHECK(fs::exists(xml));
+  // At least 12 circuits, besides the error gallery.
+  std::size_t circuits = 0;
+  for (const auto& e : fs::directory_iterator("netlists"))
+    if (e.path().extension() == ".nf") ++circuits;
+  CHECK(circuits >= 12);
+}
+
+TEST_CASE("netfold check exits 1 on a false claim and its shards add up to the whole run", "[check]") {
+  TempDir dir;
+  for (int k = 0; k < 7; ++k)
+    write_file(dir.path() / fmt::format("c{}.nf", k), rc(k == 4 ? "expect final C1.v < 1 V\n" : ""));
+  const std::string bin = shell_quote(NETFOLD_BINARY);
+  const std::string lib = shell_quote(dir.path().string());
+  const fs::path all = dir.path() / "all.txt";
+  CHECK(run(fmt::format("{} check {} > {}", bin, lib, shell_quote(all.string()))) == 1);
+  std::vector<std::string> every = lines_of(read_file(all));
+  REQUIRE(every.size() == 9);
+  CHECK(every.back() == "7 passed, 1 failed");
+  every.pop_back();
+
+  std::multiset<std::string> union_of_shards;
+  for (int k = 1; k <= 3; ++k) {
+    const fs::path part = dir.path() / fmt::format("shard{}.txt", k);
+    int status = run(fmt::format("{} check {} --shard {}/3 --jobs 2 > {}", bin, lib, k, shell_quote(part.string())));
+    std::vector<std::string> lines = lines_of(read_file(part));
+    REQUIRE_FALSE(lines.empty());
+    lines.pop_back();
+    bool has_failure = std::any_of(lines.begin(), lines.end(), [](const std::string& l) { return l.rfind("FAIL", 0) == 0; });
+    CHECK(status == (has_failure ? 1 : 0));
+    union_of_shards.insert(lines.begin(), lines.end());
+  }
+  CHECK(union_of_shards == std::multiset<std::string>(every.begin(), every.end()));
+  CHECK(run(fmt::format("{} check {} --shard 4/3 > /dev/null 2>&1", bin, lib)) == 2);
+  CHECK(run(fmt::format("{} check {} > /dev/null 2>&1", bin, shell_quote((dir.path() / "nothing").string()))) == 2);
+}
