@@ -19,6 +19,7 @@
 
 #include "netfold/check.hpp"
 #include "netfold/diagnostics.hpp"
+#include "netfold/parse.hpp"
 
 using namespace netfold;
 namespace fs = std::filesystem;
@@ -377,4 +378,44 @@ TEST_CASE("netfold check exits 1 on a false claim and its shards add up to the w
   CHECK(union_of_shards == std::multiset<std::string>(every.begin(), every.end()));
   CHECK(run(fmt::format("{} check {} --shard 4/3 > /dev/null 2>&1", bin, lib)) == 2);
   CHECK(run(fmt::format("{} check {} > /dev/null 2>&1", bin, shell_quote((dir.path() / "nothing").string()))) == 2);
+}
+
+TEST_CASE("the circuit library covers every element kind, waveform kind, claim kind and operator", "[check]") {
+  std::set<ElementKind> kinds;
+  std::set<ClaimQuantity> quantities;
+  std::set<CompareOp> ops;
+  std::set<SweepTarget> sweeps;
+  bool dc = false, sinusoid = false, phased = false, step = false, superposed = false, golden = false;
+  for (const auto& entry : fs::directory_iterator("netlists")) {
+    if (entry.path().extension() != ".nf") continue;
+    INFO(entry.path().string());
+    Circuit c = parse_netlist_file(entry.path());
+    for (const auto& e : c.elements()) {
+      kinds.insert(e.kind);
+      if (!is_independent_source(e.kind)) continue;
+      const Waveform& w = e.waveform;
+      dc |= w.dc != 0.0;
+      sinusoid |= w.has_sinusoid();
+      for (const auto& s : w.sinusoids) phased |= s.phase != 0.0;
+      step |= !w.steps.empty();
+      superposed |= (w.dc != 0.0) + (w.sinusoids.size()) + (w.steps.size()) > 1;
+    }
+    for (const auto& cl : c.claims()) {
+      quantities.insert(cl.quantity);
+      ops.insert(cl.op);
+    }
+    for (const auto& sw : c.sweeps()) sweeps.insert(sw.target);
+    golden |= c.golden_tolerance().has_value() && fs::exists(fs::path(entry.path()).replace_extension(".golden.csv"));
+  }
+  CHECK(kinds.size() == 10);
+  CHECK(quantities.size() == 13);
+  CHECK(ops.size() == 5);
+  CHECK(sweeps.size() == 3);
+  CHECK(dc);
+  CHECK(sinusoid);
+  CHECK(phased);
+  CHECK(step);
+  CHECK(superposed);
+  // At least one file is compared with a golden waveform under its own golden-tolerance.
+  CHECK(golden);
 }
