@@ -49,15 +49,15 @@ Dimension Observable::dimension() const {
 }
 
 std::optional<ElementId> Circuit::find_element(std::string_view name) const {
-  auto it = element_index_.find(std::string(name));
-  if (it == element_index_.end()) return std::nullopt;
-  return it->second;
+  ElementId id = element_index_.find(name, [this](ElementId i) { return element_name(i); });
+  if (id == kNone) return std::nullopt;
+  return id;
 }
 
 std::optional<NodeId> Circuit::find_node(std::string_view name) const {
-  auto it = node_index_.find(std::string(name));
-  if (it == node_index_.end()) return std::nullopt;
-  return it->second;
+  NodeId id = node_index_.find(name, [this](NodeId i) { return node_name(i); });
+  if (id == kNone) return std::nullopt;
+  return id;
 }
 
 std::vector<ElementId> Circuit::storage_elements() const {
@@ -74,18 +74,23 @@ Diagnostic Circuit::diagnostic(SourceLoc loc, std::string message) const {
 CircuitBuilder::CircuitBuilder(std::shared_ptr<const SourceText> source) { circuit_.source_ = std::move(source); }
 
 NodeId CircuitBuilder::node(std::string_view name) {
-  auto [it, inserted] = circuit_.node_index_.try_emplace(std::string(name), static_cast<NodeId>(circuit_.nodes_.size()));
-  if (inserted) circuit_.nodes_.emplace_back(name);
-  return it->second;
+  auto name_of = [this](NodeId i) { return circuit_.node_name(i); };
+  NodeId id = circuit_.node_index_.find(name, name_of);
+  if (id != kNone) return id;
+  id = static_cast<NodeId>(circuit_.nodes_.size());
+  circuit_.nodes_.emplace_back(name);
+  circuit_.node_index_.insert(name, id, name_of);
+  return id;
 }
 
 std::optional<NodeId> CircuitBuilder::find_node(std::string_view name) const { return circuit_.find_node(name); }
 
 std::optional<ElementId> CircuitBuilder::add_element(Element element) {
+  auto name_of = [this](ElementId i) { return circuit_.element_name(i); };
+  if (circuit_.element_index_.find(element.name, name_of) != kNone) return std::nullopt;
   auto id = static_cast<ElementId>(circuit_.elements_.size());
-  auto [it, inserted] = circuit_.element_index_.try_emplace(element.name, id);
-  if (!inserted) return std::nullopt;
   circuit_.elements_.push_back(std::move(element));
+  circuit_.element_index_.insert(circuit_.elements_.back().name, id, name_of);
   return id;
 }
 

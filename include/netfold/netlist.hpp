@@ -202,6 +202,53 @@ struct Window {
   SourceLoc loc;
 };
 
+/// A flat open-addressing index from names to ids: the slots hold ids only and the names are
+/// read from the owning table, so a million names cost 4–8 bytes each and no allocation.
+class NameIndex {
+ public:
+  /// The id whose name (per `name_of`) equals `name`, or kNone.
+  template <typename NameOf>
+  std::uint32_t find(std::string_view name, NameOf&& name_of) const {
+    if (slots_.empty()) return kNone;
+    for (std::size_t i = hash(name) & mask_;; i = (i + 1) & mask_) {
+      std::uint32_t id = slots_[i];
+      if (id == kNone) return kNone;
+      if (name_of(id) == name) return id;
+    }
+  }
+  /// Adds `id` under `name` (the caller made sure the name is new).
+  template <typename NameOf>
+  void insert(std::string_view name, std::uint32_t id, NameOf&& name_of) {
+    if (2 * (count_ + 1) > slots_.size()) grow(name_of);
+    place(hash(name), id);
+    ++count_;
+  }
+  /// Makes room for `n` names.
+  template <typename NameOf>
+  void reserve(std::size_t n, NameOf&& name_of) {
+    while (slots_.size() < 2 * n) grow(name_of);
+  }
+
+ private:
+  std::vector<std::uint32_t> slots_;
+  std::size_t mask_ = 0;
+  std::size_t count_ = 0;
+  static std::size_t hash(std::string_view s) { return std::hash<std::string_view>{}(s); }
+  void place(std::size_t h, std::uint32_t id) {
+    std::size_t i = h & mask_;
+    while (slots_[i] != kNone) i = (i + 1) & mask_;
+    slots_[i] = id;
+  }
+  template <typename NameOf>
+  void grow(NameOf&& name_of) {
+    std::vector<std::uint32_t> old = std::move(slots_);
+    slots_.assign(old.empty() ? 64 : 2 * old.size(), kNone);
+    mask_ = slots_.size() - 1;
+    for (std::uint32_t id : old)
+      if (id != kNone) place(hash(name_of(id)), id);
+  }
+};
+
 /// A checked, immutable circuit. Nodes and elements are addressed by index.
 class Circuit {
  public:
@@ -243,10 +290,12 @@ class Circuit {
   std::shared_ptr<const SourceText> source_;
   std::string title_;
   std::vector<std::string> nodes_;
-  std::unordered_map<std::string, NodeId> node_index_;
+  NameIndex node_index_;
   NodeId ground_ = kNone;
   std::vector<Element> elements_;
-  std::unordered_map<std::string, ElementId> element_index_;
+  NameIndex element_index_;
+  std::string_view node_name(NodeId id) const { return nodes_[id]; }
+  std::string_view element_name(ElementId id) const { return elements_[id].name; }
   std::vector<Observable> watches_;
   std::vector<Sweep> sweeps_;
   std::vector<Claim> claims_;
@@ -284,9 +333,9 @@ class CircuitBuilder {
   /// without regrowing the tables (a hint only; more may be added).
   void reserve(std::size_t elements, std::size_t nodes) {
     circuit_.elements_.reserve(elements);
-    circuit_.element_index_.reserve(elements);
+    circuit_.element_index_.reserve(elements, [this](ElementId id) { return circuit_.element_name(id); });
     circuit_.nodes_.reserve(nodes);
-    circuit_.node_index_.reserve(nodes);
+    circuit_.node_index_.reserve(nodes, [this](NodeId id) { return circuit_.node_name(id); });
   }
   /// Finishes: a ground named `gnd` is used when set_ground was not called.
   Circuit build() &&;
