@@ -10,7 +10,7 @@
 ///   netfold::Solution s = netfold::solve(c);
 ///   for (const auto& r : netfold::evaluate_claims(c, s))
 ///     std::cout << (r.passed ? "PASS " : "FAIL ") << r.location() << ": " << r.text << " — " << r.message << '\n';
-///   // PASS netlists/valve_coil.nf:12: tau = 6.67 ms ± 1% — computed 6.6667 ms, claimed 6.67 ms ± 1% (margin 63.33 µs)
+///   // PASS netlists/valve_coil.nf:12: tau = 6.67 ms ± 1% — computed 6.6667 ms, claimed 6.67 ms ± 1% (margin 63.37 µs)
 /// \endcode
 
 #include <optional>
@@ -36,7 +36,7 @@ struct ClaimResult {
   /// the computed value is undefined; ±∞ when it is infinite.
   std::optional<double> margin;
   bool passed = false;
-  /// "computed 6.6667 ms, claimed 6.67 ms ± 1% (margin 63.33 µs)", or why there is no value,
+  /// "computed 6.6667 ms, claimed 6.67 ms ± 1% (margin 63.37 µs)", or why there is no value,
   /// with SI-prefixed numbers.
   std::string message;
 
