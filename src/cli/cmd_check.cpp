@@ -39,14 +39,16 @@ Command register_check(CLI::App& app) {
     // With the XML on standard output the text report would corrupt it; it goes nowhere.
     const bool text = args->junit != "-";
     const bool progress = isatty(STDERR_FILENO) && files.size() > 1;
+    // Report lines share the terminal with the progress line only when both go to it.
+    const bool shared_terminal = progress && isatty(STDOUT_FILENO);
     CheckOptions options;
     options.update_golden = args->update_golden;
     options.jobs = args->jobs;
     options.on_file = [&](const FileResult& f) {
       if (!text) return;
-      if (progress) std::cerr << kClearLine << std::flush;
+      if (shared_terminal) std::cerr << kClearLine << std::flush;
       write_file_text(std::cout, f);
-      if (progress) std::cout << std::flush;
+      if (shared_terminal) std::cout << std::flush;
     };
     if (progress)
       options.on_progress = [&](std::size_t done, std::size_t n) {
