@@ -1,8 +1,8 @@
 #pragma once
 // Internal: one factorization of a nodal matrix, reused for every right-hand side.
 // Small systems use a dense LU; large symmetric positive definite ones (resistor networks
-// with grounded sources) CHOLMOD's supernodal Cholesky; other large ones KLU, which is built
-// for circuit matrices.
+// with grounded sources) a sparse Cholesky (LDLᵀ); other large ones KLU, which is built for
+// circuit matrices.
 // Rows and columns are equilibrated first, so that the condition estimate measures the
 // circuit (a 10 Gohm resistor beside a voltage source is not ill-posed) and not the units.
 
@@ -41,7 +41,7 @@ std::unique_ptr<LinearSolver> factor_nodal_matrix(const Eigen::SparseMatrix<doub
 /// requires an SPD matrix).
 std::unique_ptr<LinearSolver> factor_nodal_matrix_with(const Eigen::SparseMatrix<double>& g, SolverKind kind);
 
-/// Name of a solver kind for reports: "dense LU", "KLU", "CHOLMOD Cholesky".
+/// Name of a solver kind for reports: "dense LU", "KLU", "sparse LDLT".
 const char* solver_kind_name(SolverKind kind);
 
 }  // namespace netfold

@@ -584,7 +584,9 @@ Figures compute_figures(const Solution& solution, const Observable& obs) {
     double d = last.a < 0.0 ? last.transient + last.drift / last.a : (last.a == 0.0 ? 0.0 : last.transient);
     double reference = steady_peak(*f.steady);
     f.steady_peak = reference;
-    if (reference == 0.0) reference = f.peak;
+    // A steady state that is zero but for rounding (a capacitor current under DC) would make
+    // the 1 % criterion measure noise: such a steady state counts as zero.
+    if (reference <= 1e-9 * f.peak) reference = f.peak;
     double threshold = 0.01 * reference;
     if (d == 0.0 || std::fabs(d) <= threshold) {
       f.settling_time = 0.0;

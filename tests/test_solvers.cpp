@@ -1,5 +1,5 @@
 // The three factorizations of the nodal matrix (src/linear_solver.hpp) — dense LU, KLU and, for
-// symmetric positive definite matrices, CHOLMOD Cholesky — solve the same systems to the same
+// symmetric positive definite matrices, a sparse Cholesky (LDLT) — solve the same systems to the same
 // answer, and the engine's results do not depend on which one a circuit's size selects.
 //
 // Systems: resistive grids, ladders and random networks with controlled sources from
@@ -93,7 +93,7 @@ void check_paths_agree(const System& s, bool dense, bool cholesky) {
   if (cholesky) {
     const Eigen::MatrixXd llt = solve_with(s, SolverKind::sparse_cholesky);
     const double d = column_relative_difference(llt, klu);
-    INFO("CHOLMOD Cholesky vs KLU: " << d);
+    INFO("sparse LDLT vs KLU: " << d);
     CHECK(d <= kAgreement);
     CHECK(backward_error(s.nodal.matrix(), llt, s.rhs) < 1e-13);
   }
@@ -227,7 +227,7 @@ TEST_CASE("a resistor replaced by a 400-link chain of the same total gives the s
   auto dense = solve_text(rc_circuit(kOneResistor, ""));
   auto padded = solve_text(rc_circuit(padded_resistor(), ""));
   REQUIRE(padded->network(padded->segments().back()).system().unknown_count() > kDenseLimit);
-  check_same_results(dense, padded, "CHOLMOD Cholesky", 75.0);
+  check_same_results(dense, padded, "sparse LDLT", 75.0);
 }
 
 TEST_CASE("with a current-controlled source the padded circuit takes KLU and still gives the dense answer",
