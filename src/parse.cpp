@@ -1054,7 +1054,7 @@ void FileParser::parse_resolution(const Token& keyword) {
   expect_end();
   double dt = to_si(v, Dimension::time, "'resolution'");
   if (!(dt > 0)) report(v.loc, fmt::format("'resolution' needs a positive time step, found '{}'", v.quote()));
-  builder_.set_resolution(dt);
+  builder_.set_resolution(dt, keyword.loc);
   resolution_line_ = keyword.loc.line;
 }
 

@@ -43,47 +43,27 @@ std::vector<double> ReducedNetwork::coefficients(const LinearForm& form) const {
   return c;
 }
 
-namespace {
-
-// Largest conductance and resistance of the resistive parts: the scales below which a
-// computed coefficient is rounding noise rather than a physical value.
-struct Scales {
-  double conductance = 0.0;
-  double resistance = 0.0;
-};
-
-Scales resistive_scales(const Circuit& circuit) {
-  Scales s;
-  auto take = [&](double r) {
-    if (r > 0 && std::isfinite(r)) {
-      s.conductance = std::max(s.conductance, 1.0 / r);
-      s.resistance = std::max(s.resistance, r);
-    }
-  };
-  for (const auto& e : circuit.elements()) {
-    if (e.kind == ElementKind::resistor) take(e.value);
-    if (e.kind == ElementKind::switch_) {
-      take(e.r_on);
-      take(e.r_off);
-    }
-    if (e.kind == ElementKind::ccvs) take(std::fabs(e.value));
-    if (e.kind == ElementKind::vccs && e.value != 0) take(1.0 / std::fabs(e.value));
-  }
-  return s;
+std::vector<double> ReducedNetwork::magnitudes(const LinearForm& form) const {
+  std::vector<double> m(system_.input_count(), 0.0);
+  if (response_.size() == 0 && system_.unknown_count() > 0) throw NumericError("magnitudes of a singular network");
+  for (auto [x, coef] : form.unknowns)
+    for (std::uint32_t j = 0; j < m.size(); ++j) m[j] += std::fabs(coef * response_(x, j));
+  for (auto [u, coef] : form.inputs) m[u] += std::fabs(coef);
+  return m;
 }
-
-}  // namespace
 
 Equivalent storage_equivalent(const Circuit& circuit, const ReducedNetwork& network, ElementId storage) {
   const Element& e = circuit.element(storage);
-  std::vector<double> c = network.coefficients(network.system().port_quantity());
-  const Scales scales = resistive_scales(circuit);
-  Equivalent eq;
+  const LinearForm port = network.system().port_quantity();
+  std::vector<double> c = network.coefficients(port);
+  // The state's coefficient is zero (R_th = ∞ for a capacitor, 0 for an inductor) when
+  // nothing but rounding is left of the terms that made it.
   double c0 = c[0];
+  if (std::fabs(c0) <= kCancellation * network.magnitudes(port)[0]) c0 = 0.0;
+  Equivalent eq;
   c[0] = 0.0;
   if (e.kind == ElementKind::capacitor) {
     // i_C = c0·v_C + Σ c_j·u_j
-    if (std::fabs(c0) <= 1e-13 * scales.conductance) c0 = 0.0;
     eq.rate = c0 / e.value;
     eq.isc = c;
     if (c0 == 0.0) {
@@ -95,7 +75,6 @@ Equivalent storage_equivalent(const Circuit& circuit, const ReducedNetwork& netw
     }
   } else {
     // v_L = c0·i_L + Σ c_j·u_j
-    if (std::fabs(c0) <= 1e-13 * scales.resistance) c0 = 0.0;
     eq.rate = c0 / e.value;
     eq.rth = -c0;
     eq.voc = c;

@@ -381,14 +381,12 @@ PortEquivalent port_equivalent(const Solution& sol, std::optional<std::pair<Node
   if (tested.rcond() < kSingularRcond)
     throw NumericError(fmt::format("the equations with a test source at {} are singular (reciprocal condition {:.1e})",
                                    eq.port, tested.rcond()));
-  std::vector<double> k = tested.coefficients(tested.system().test_port_current());
+  const LinearForm test_current = tested.system().test_port_current();
+  std::vector<double> k = tested.coefficients(test_current);
   const std::uint32_t t = tested.system().test_port_input();
   double ktt = k[t];
+  if (std::fabs(ktt) <= kCancellation * tested.magnitudes(test_current)[t]) ktt = 0.0;
   k.resize(t);  // the state and the sources; drop the test input
-  double g_scale = 0.0;
-  for (const auto& e : c.elements())
-    if (e.kind == ElementKind::resistor) g_scale = std::max(g_scale, 1.0 / e.value);
-  if (std::fabs(ktt) <= 1e-13 * g_scale) ktt = 0.0;
   if (ktt == 0.0) {
     eq.rth = kInfinity;
     bool driven = false;

@@ -68,8 +68,19 @@ std::string node_names(const Circuit& c, const std::vector<NodeId>& ids) {
 }
 
 // Turns a structural problem of a segment's network into a message in circuit terms.
+// A switch that closes at the start of the segment and so creates the fault.
+ElementId switch_closing_at(const Circuit& c, const std::vector<ElementId>& ids, double t) {
+  for (ElementId id : ids) {
+    const Element& e = c.element(id);
+    if (e.kind != ElementKind::switch_) continue;
+    for (const auto& ev : e.events)
+      if (ev.closes && ev.time == t) return id;
+  }
+  return kNone;
+}
+
 [[noreturn]] void report_problem(const Circuit& c, const TopologyProblem& p, const std::string& where,
-                                 ElementId storage, double state) {
+                                 ElementId storage, double state, double segment_start) {
   using Kind = TopologyProblem::Kind;
   const auto& el = c.elements();
   switch (p.kind) {
@@ -89,6 +100,20 @@ std::string node_names(const Circuit& c, const std::vector<NodeId>& ids) {
       ElementId first = p.elements.front();
       for (ElementId id : p.elements)
         if (el[id].kind != ElementKind::switch_) first = std::min(first, id);
+      ElementId closing = switch_closing_at(c, p.elements, segment_start);
+      if (closing != kNone && !only_switches) {
+        std::vector<ElementId> sources;
+        for (ElementId id : p.elements)
+          if (el[id].kind != ElementKind::switch_) sources.push_back(id);
+        std::sort(sources.begin(), sources.end());  // file order reads naturally
+        fail(c, el[closing].loc,
+             fmt::format("{} closes at {} and connects {} straight {}: a loop of ideal voltage sources with "
+                         "no resistance, so their voltages fight and the loop current is undefined; add the "
+                         "resistance that is really there (the sources' internal resistance, wiring) or give {} "
+                         "an 'on' resistance",
+                         el[closing].name, format_si(segment_start, "s"), names_of(c, sources),
+                         sources.size() == 1 ? "across itself" : "to each other", el[closing].name));
+      }
       if (only_switches)
         fail(c, el[first].loc,
              fmt::format("closed switches {} form a loop with no resistance in {}: the current that circulates "
@@ -102,6 +127,16 @@ std::string node_names(const Circuit& c, const std::vector<NodeId>& ids) {
     }
     case Kind::current_cut_set: {
       ElementId first = p.elements.front();
+      if (storage != kNone && std::find(p.elements.begin(), p.elements.end(), storage) != p.elements.end()) {
+        std::vector<ElementId> others;
+        for (ElementId id : p.elements)
+          if (id != storage) others.push_back(id);
+        fail(c, el[storage].loc,
+             fmt::format("inductor {} is in series with current source {} in {}: the source fixes the inductor's "
+                         "current, which would have to jump to the source's value; add a resistance across {} or "
+                         "across {}",
+                         el[storage].name, names_of(c, others), where, el[storage].name, names_of(c, others)));
+      }
       fail(c, el[first].loc,
            fmt::format("{} {} the only connection of node{} {} in {}: a current source cannot drive a node "
                        "that has no other path; add a resistance across {} or from {} to the reference",
@@ -154,11 +189,61 @@ std::string node_names(const Circuit& c, const std::vector<NodeId>& ids) {
                    where, net.rcond(), detail));
 }
 
+// Resistances whose ratio passes 1e15 cannot both act in one double-precision solve: a
+// conductance 1e15 times another is lost in its rounding. Refused with the two named.
+constexpr double kMaxResistanceSpan = 1e15;
+// Below 1e-18 s a time constant means an impulsive circuit (a near-zero resistance in series
+// with the capacitor): its response is a step and the currents near-infinite impulses.
+constexpr double kShortestTau = 1e-18;
+// More samples than this would be a CSV of gigabytes: a resolution mistake.
+constexpr double kMaxSamples = 1e7;
+// Longest default window: beyond it a time constant or a period is almost surely a typing
+// mistake (common practice, no source), and the numerical check could not cover it anyway.
+constexpr double kMaxDefaultWindow = 1e9;
+
+void check_value_span(const Circuit& c) {
+  const auto& el = c.elements();
+  ElementId smallest = kNone, largest = kNone;
+  double r_min = 0.0, r_max = 0.0;
+  auto take = [&](ElementId id, double r) {
+    if (!(r > 0.0) || !std::isfinite(r)) return;
+    if (smallest == kNone || r < r_min) {
+      smallest = id;
+      r_min = r;
+    }
+    if (largest == kNone || r > r_max) {
+      largest = id;
+      r_max = r;
+    }
+  };
+  for (ElementId i = 0; i < el.size(); ++i) {
+    if (el[i].kind == ElementKind::resistor) take(i, el[i].value);
+    if (el[i].kind == ElementKind::switch_) {
+      take(i, el[i].r_on);
+      take(i, el[i].r_off);
+    }
+  }
+  if (smallest == kNone || r_max / r_min <= kMaxResistanceSpan) return;
+  fail(c, el[smallest].loc,
+       fmt::format("resistances span more than 1e15 ({} = {} to {} = {}): double precision cannot carry both "
+                   "through one network; model {} as a closed switch (a wire) or {} as an open circuit",
+                   el[smallest].name, format_si(r_min, "Ω"), el[largest].name, format_si(r_max, "Ω"),
+                   el[smallest].name, el[largest].name));
+}
+
 double slowest_frequency(const Circuit& c) {
   double f = 0.0;
   for (const auto& e : c.elements())
     for (const auto& s : e.waveform.sinusoids)
       if (s.amplitude != 0.0 && (f == 0.0 || s.frequency < f)) f = s.frequency;
+  return f;
+}
+
+double fastest_frequency(const Circuit& c) {
+  double f = 0.0;
+  for (const auto& e : c.elements())
+    for (const auto& s : e.waveform.sinusoids)
+      if (s.amplitude != 0.0) f = std::max(f, s.frequency);
   return f;
 }
 
@@ -220,6 +305,44 @@ Wave Solution::observable_wave(const LinearForm& form, const Segment& segment) c
   return affine_wave(segment.state, c[0], drive_of(c, segment));
 }
 
+// Says why an observable has no value in a segment, naming the floating part of the
+// circuit and, where an open switch isolates it, that switch.
+std::string Solution::undefined_observable_text(const Observable& obs, const NodalSystem& sys,
+                                                const Segment& seg) const {
+  const Circuit& c = *circuit_;
+  const auto& el = c.elements();
+  NodeId node = obs.node_a;
+  if (obs.kind != ObservableKind::node_voltage && obs.kind != ObservableKind::node_difference) {
+    const Element& e = el[obs.element];
+    node = sys.node_floating(e.pos) || e.neg == c.ground() ? e.pos : e.neg;
+  }
+  if (obs.kind == ObservableKind::node_difference && !sys.node_floating(node)) node = obs.node_b;
+  const auto part = sys.component_of(node);
+  std::vector<ElementId> members, open_switches;
+  std::size_t k = 0;
+  for (ElementId i = 0; i < el.size(); ++i) {
+    const bool touches = (el[i].pos != c.ground() && sys.component_of(el[i].pos) == part) ||
+                         (el[i].neg != c.ground() && sys.component_of(el[i].neg) == part);
+    if (el[i].kind == ElementKind::switch_) {
+      if (touches && !seg.positions.closed[k]) open_switches.push_back(i);
+      ++k;
+    } else if (touches && members.size() < 6) {
+      members.push_back(i);
+    }
+  }
+  std::string what = obs.kind == ObservableKind::node_voltage
+                         ? fmt::format("node {} is on a part of the circuit", c.nodes()[node])
+                         : fmt::format("its ends are not connected to each other; node {} is on a part of the circuit",
+                                       c.nodes()[node]);
+  std::string fix = open_switches.empty()
+                        ? "connect that part to the rest of the circuit (a misspelt node name does this) or "
+                          "give it a resistance to the reference"
+                        : fmt::format("give {} an 'off' resistance, or give that part a resistance to the reference",
+                                      names_of(c, open_switches));
+  return fmt::format("'{}' is not defined in {}: {} ({}) with no path to the reference there; {}", obs.text,
+                     segment_text(c, seg), what, names_of(c, members), fix);
+}
+
 std::vector<Piece> Solution::pieces(const Observable& obs) const {
   std::vector<Piece> out;
   out.reserve(segments_.size());
@@ -228,13 +351,7 @@ std::vector<Piece> Solution::pieces(const Observable& obs) const {
     LinearForm f = observable_form(obs, sys, false);
     if (!f.defined) {
       SourceLoc loc = obs.loc.line > 0 ? obs.loc : (storage_ != kNone ? circuit_->element(storage_).loc : SourceLoc{});
-      std::string fix = obs.kind == ObservableKind::element_voltage || obs.kind == ObservableKind::element_power
-                            ? "its two ends are in parts of the network that are not connected"
-                            : "the node has no path to the reference there";
-      throw InputError(circuit_->diagnostic(
-          loc, fmt::format("'{}' is not defined in {}: {}; add a resistance to the reference, or give the open "
-                           "switch an 'off' resistance",
-                           obs.text, segment_text(*circuit_, seg), fix)));
+      throw InputError(circuit_->diagnostic(loc, undefined_observable_text(obs, sys, seg)));
     }
     Piece p{observable_wave(f, seg), std::nullopt};
     if (obs.kind == ObservableKind::element_power) p.g = observable_wave(observable_form(obs, sys, true), seg);
@@ -272,6 +389,7 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
   }
   s.storage_ = storages.empty() ? kNone : storages.front();
   s.sources_ = independent_sources(c);
+  check_value_span(c);
   const double storage_value = s.storage_ != kNone ? el[s.storage_].value : 1.0;
 
   // Switching instants, with a swept first `closes` moved.
@@ -327,8 +445,25 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
         if (eq.rate != 0.0) span = 8.0 / std::fabs(eq.rate) * options.testing_tau_scale;
       }
     }
+    const double tau_span = span;
     double f = slowest_frequency(c);
     if (f > 0.0) span = std::max(span, 5.0 / f);
+    if (span > kMaxDefaultWindow) {
+      // Which element set it: the storage element (8 τ) or the slowest sinusoid (5 periods).
+      SourceLoc loc = s.storage_ != kNone ? el[s.storage_].loc : SourceLoc{1, 1};
+      std::string why = fmt::format("8 τ of {}", s.storage_ != kNone ? el[s.storage_].name : "");
+      if (span > tau_span)
+        for (const auto& e : el)
+          for (const auto& w : e.waveform.sinusoids)
+            if (w.amplitude != 0.0 && w.frequency == f) {
+              loc = e.loc;
+              why = fmt::format("5 periods of {} at {}", e.name, format_si(f, "Hz"));
+            }
+      fail(c, loc,
+           fmt::format("the default window would be 0 s .. {} ({}), longer than 1e9 s (about 30 years): check the "
+                       "value, or declare a 'window' for the time of interest",
+                       format_si(last_event + span, "s"), why));
+    }
     if (span == 0.0) {
       span = last_event > 0.0 ? last_event : 1.0;
       s.warnings_.push_back(fmt::format("the circuit has no finite time constant and no sinusoid to size the "
@@ -340,12 +475,27 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
   const double t_end = s.window_.to;
   s.resolution_ = c.resolution().value_or((s.window_.to - s.window_.from) / 4000.0);
   if (c.resolution() && *c.resolution() > s.window_.to - s.window_.from) {
-    SourceLoc loc = c.window() ? c.window()->loc : SourceLoc{1, 1};
+    SourceLoc loc = c.window() ? c.window()->loc : c.resolution_loc();
     fail(c, loc,
          fmt::format("the resolution {} is longer than the window {} .. {}; the CSV would hold one row: make the "
                      "window longer or the resolution shorter",
                      format_si(*c.resolution(), "s"), format_si(s.window_.from, "s"), format_si(s.window_.to, "s")));
   }
+  const double samples = (s.window_.to - s.window_.from) / s.resolution_;
+  if (samples > kMaxSamples) {
+    SourceLoc loc = c.resolution() ? c.resolution_loc() : (c.window() ? c.window()->loc : SourceLoc{1, 1});
+    fail(c, loc,
+         fmt::format("the resolution {} over the window {} .. {} asks for {:.3g} samples, more than the limit of "
+                     "{:.0f}; choose a resolution of at least {}",
+                     format_si(s.resolution_, "s"), format_si(s.window_.from, "s"), format_si(s.window_.to, "s"),
+                     samples, kMaxSamples, format_si((s.window_.to - s.window_.from) / kMaxSamples, "s")));
+  }
+  if (double f_fast = fastest_frequency(c); f_fast > 0.0 && s.resolution_ > 0.25 / f_fast)
+    s.warnings_.push_back(fmt::format("the resolution {} is coarser than a quarter period of the {} sinusoid: the CSV "
+                                      "and the plot cannot show it (they alias it); the figures come from the closed "
+                                      "form and are exact; set 'resolution' to at most {} to see the waveform",
+                                      format_si(s.resolution_, "s"), format_si(f_fast, "Hz"),
+                                      format_si(0.25 / f_fast, "s")));
   for (const auto& ev : events) {
     if (ev.time < t_end) continue;
     s.warnings_.push_back(fmt::format("{}'s event at {} is at or after the end of the window ({}); it is ignored",
@@ -425,17 +575,17 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
 
     const ReducedNetwork* net = &s.cache_->get(seg.positions);
     for (const auto& p : net->system().problems()) {
-      if (p.kind != TopologyProblem::Kind::inductor_open) report_problem(c, p, where, s.storage_, state);
+      if (p.kind != TopologyProblem::Kind::inductor_open) report_problem(c, p, where, s.storage_, state, seg.from);
       // The current may stay at zero: then it is held there, else it would have to jump.
       if (std::fabs(state) > 1e-12 * state_scale || (state != 0.0 && state_scale == 0.0))
-        report_problem(c, p, where, s.storage_, state);
+        report_problem(c, p, where, s.storage_, state, seg.from);
       seg.mode = PortMode::held_at_zero;
     }
     if (seg.mode == PortMode::held_at_zero) {
       state = 0.0;
       seg.state_start = 0.0;
       net = &s.cache_->get(seg.positions, seg.mode);
-      for (const auto& p : net->system().problems()) report_problem(c, p, where, s.storage_, state);
+      for (const auto& p : net->system().problems()) report_problem(c, p, where, s.storage_, state, seg.from);
     }
     if (net->rcond() < kSingularRcond) report_singular(c, *net, where);
     seg.rcond = net->rcond();
@@ -451,6 +601,14 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
       seg.equivalent = storage_equivalent(c, *net, s.storage_);
       seg.rate = seg.equivalent.rate / options.testing_tau_scale;
       seg.tau = seg.rate == 0.0 ? kInfinity : -1.0 / seg.rate;
+      if (std::fabs(seg.tau) < kShortestTau)
+        fail(c, el[s.storage_].loc,
+             fmt::format("the time constant of {} is {} (R_th = {} with {} = {}), far below anything that can be "
+                         "resolved: the circuit is effectively impulsive; give the series path its real "
+                         "resistance (wiring, the source's internal resistance, ESR)",
+                         segment_text(c, seg), format_si(seg.tau, "s"), format_si(seg.equivalent.rth, "Ω"),
+                         el[s.storage_].name,
+                         format_si(el[s.storage_].value, el[s.storage_].kind == ElementKind::capacitor ? "F" : "H")));
       seg.voc_defined = !seg.equivalent.voc.empty();
       seg.isc_defined = !seg.equivalent.isc.empty();
       if (seg.voc_defined) seg.voc = s.drive_of(seg.equivalent.voc, seg);
@@ -475,6 +633,40 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
                        segment_text(c, seg)));
     state_scale = std::max(state_scale, std::fabs(state));
     s.segments_.push_back(std::move(seg));
+  }
+
+  // A sub-network that floats in every segment touches nothing else: usually a typing
+  // mistake in a node name. Its voltages against the reference are undefined.
+  {
+    std::vector<bool> always(c.nodes().size(), true);
+    for (const auto& seg : s.segments_) {
+      const NodalSystem& sys = s.network(seg).system();
+      for (NodeId n = 0; n < c.nodes().size(); ++n)
+        if (!sys.node_floating(n)) always[n] = false;
+    }
+    const NodalSystem& first = s.network(s.segments_.front()).system();
+    std::vector<bool> reported(c.nodes().size(), false);
+    for (NodeId n = 0; n < c.nodes().size(); ++n) {
+      if (!always[n] || reported[n]) continue;
+      std::vector<NodeId> group;
+      for (NodeId m = n; m < c.nodes().size(); ++m)
+        if (always[m] && first.component_of(m) == first.component_of(n)) {
+          group.push_back(m);
+          reported[m] = true;
+        }
+      bool holds_storage = s.storage_ != kNone && (el[s.storage_].pos == n || first.component_of(el[s.storage_].pos) ==
+                                                                                   first.component_of(n));
+      if (holds_storage) continue;
+      ElementId touching = kNone;
+      for (ElementId i = 0; i < el.size() && touching == kNone; ++i)
+        if (el[i].pos == n || el[i].neg == n) touching = i;
+      s.warnings_.push_back(fmt::format(
+          "node{} {} {} no path to the reference in any segment (line {}, {}): {} voltages against it are undefined; "
+          "connect the sub-network or remove it (a misspelt node name does this)",
+          group.size() > 1 ? "s" : "", node_names(c, group), group.size() > 1 ? "have" : "has",
+          touching != kNone ? el[touching].loc.line : 0, touching != kNone ? el[touching].name : "", 
+          group.size() > 1 ? "their" : "its"));
+    }
   }
 
   // What is reported: the watch list, or the storage element's voltage and current.
@@ -566,6 +758,16 @@ Figures compute_figures(const Solution& solution, const Observable& obs) {
     f.t_peak = ex.t_min;
   }
   f.final_value = pieces.back().value(win.to);
+  for (double v : {f.max, f.min, f.final_value})
+    if (!std::isfinite(v)) {
+      const Circuit& c = solution.circuit();
+      SourceLoc loc = obs.loc.line > 0 ? obs.loc
+                                       : (solution.storage() != kNone ? c.element(solution.storage()).loc : SourceLoc{1, 1});
+      throw InputError(c.diagnostic(loc, fmt::format("'{}' reaches values beyond the range of double precision in "
+                                                     "the window; check the element values (a near-zero or "
+                                                     "near-infinite resistance, capacitance or inductance)",
+                                                     obs.text)));
+    }
   if (obs.kind == ObservableKind::element_power) return f;
 
   const Wave& last = pieces.back().f;
@@ -608,6 +810,18 @@ Observable element_observable(const Circuit& c, ElementId id, ObservableKind kin
   return o;
 }
 
+// An integral of a product overflows long before its factors do (a 1e300 V source): refuse it
+// in circuit terms rather than print a number that is not one.
+double finite_or_refuse(const Solution& solution, ElementId id, double value, const char* what) {
+  if (std::isfinite(value)) return value;
+  const Circuit& c = solution.circuit();
+  throw InputError(c.diagnostic(c.element(id).loc,
+                                fmt::format("the {} of {} over the window is beyond the range of double precision; "
+                                            "check the element values (a source or a capacitance, inductance or "
+                                            "resistance many decades from any real part)",
+                                            what, c.element(id).name)));
+}
+
 }  // namespace
 
 double element_energy(const Solution& solution, ElementId id, double* scale) {
@@ -623,8 +837,8 @@ double element_energy(const Solution& solution, ElementId id, double* scale) {
     sum += part;
     magnitude += std::fabs(part);
   }
-  if (scale) *scale = magnitude;
-  return sum;
+  if (scale) *scale = finite_or_refuse(solution, id, magnitude, "energy");
+  return finite_or_refuse(solution, id, sum, "energy");
 }
 
 double element_i2t(const Solution& solution, ElementId id) {
@@ -636,7 +850,7 @@ double element_i2t(const Solution& solution, ElementId id) {
     double a = std::max(win.from, p.t0()), b = std::min(win.to, p.t1());
     if (a < b) sum += integral_of_product(p.f, p.f, a, b);
   }
-  return std::max(0.0, sum);
+  return std::max(0.0, finite_or_refuse(solution, id, sum, "I²t"));
 }
 
 double element_mean_power(const Solution& solution, ElementId id) {
@@ -652,7 +866,7 @@ double element_mean_power(const Solution& solution, ElementId id) {
       for (const auto& pv : vs->phasors)
         for (const auto& pi : is->phasors)
           if (pv.frequency == pi.frequency) p += 0.5 * (pv.value * std::conj(pi.value)).real();
-      return p;
+      return finite_or_refuse(solution, id, p, "mean power");
     }
   }
   return element_energy(solution, id) / (win.to - win.from);

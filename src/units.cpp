@@ -3,6 +3,7 @@
 #include <array>
 #include <charconv>
 #include <cmath>
+#include <cstdlib>
 #include <numbers>
 
 #include <fmt/format.h>
@@ -182,8 +183,10 @@ std::string format_si(double value, std::string_view unit, int digits) {
   }
   static constexpr std::array<std::string_view, 11> kNames{"f", "p", "n", "µ", "m", "", "k", "M", "G", "T", "P"};
   double mag = std::fabs(value);
+  // Far outside the prefixes (and where the rounded text could be subnormal or overflow).
+  if (!(mag >= 1e-18 && mag < 1e18)) return join(fmt::format("{:.{}g}", value, digits), "");
   // Round first, so that 999.96 µs becomes 1 ms rather than 1000 µs.
-  double rounded = std::stod(fmt::format("{:.{}e}", mag, digits - 1));
+  double rounded = std::strtod(fmt::format("{:.{}e}", mag, digits - 1).c_str(), nullptr);
   int exp3 = static_cast<int>(std::floor(std::log10(rounded) / 3.0));
   if (exp3 < -5 || exp3 > 5) return join(fmt::format("{:.{}g}", value, digits), "");
   double mantissa = rounded / std::pow(10.0, 3 * exp3);

@@ -269,6 +269,8 @@ class Circuit {
   const std::vector<Claim>& claims() const { return claims_; }
   const std::optional<Window>& window() const { return window_; }
   const std::optional<double>& resolution() const { return resolution_; }
+  /// Position of the `resolution` statement ({0,0} when there is none).
+  SourceLoc resolution_loc() const { return resolution_loc_; }
   /// Extension `golden-tolerance X`: relative tolerance for golden waveform comparison.
   const std::optional<double>& golden_tolerance() const { return golden_tolerance_; }
   /// Position of the `ground` statement ({0,0} when implicit).
@@ -301,6 +303,7 @@ class Circuit {
   std::vector<Claim> claims_;
   std::optional<Window> window_;
   std::optional<double> resolution_;
+  SourceLoc resolution_loc_;
   std::optional<double> golden_tolerance_;
   SourceLoc ground_loc_;
 };
@@ -327,7 +330,10 @@ class CircuitBuilder {
   void add_sweep(Sweep sweep) { circuit_.sweeps_.push_back(std::move(sweep)); }
   void add_claim(Claim claim) { circuit_.claims_.push_back(std::move(claim)); }
   void set_window(Window window) { circuit_.window_ = window; }
-  void set_resolution(double dt) { circuit_.resolution_ = dt; }
+  void set_resolution(double dt, SourceLoc loc = {}) {
+    circuit_.resolution_ = dt;
+    circuit_.resolution_loc_ = loc;
+  }
   void set_golden_tolerance(double rel) { circuit_.golden_tolerance_ = rel; }
   /// Makes room for about `elements` elements and `nodes` nodes, so that a large file is read
   /// without regrowing the tables (a hint only; more may be added).

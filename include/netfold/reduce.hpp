@@ -25,6 +25,9 @@ class ReducedNetwork {
   const NodalSystem& system() const { return system_; }
   /// c such that the form's value is Σ_j c_j·u_j, one entry per input.
   std::vector<double> coefficients(const LinearForm& form) const;
+  /// Σ|terms| that made each coefficient: a coefficient far below its magnitude is what is
+  /// left of a cancellation, zero up to rounding (relative error ~1e-16·magnitude/|c|).
+  std::vector<double> magnitudes(const LinearForm& form) const;
   /// Reciprocal condition estimate of the equilibrated nodal matrix (0 = singular).
   double rcond() const { return rcond_; }
   /// Factorization used ("dense LU" or "KLU").
@@ -42,6 +45,8 @@ class ReducedNetwork {
 
 /// Below this reciprocal condition estimate the equations are treated as singular.
 inline constexpr double kSingularRcond = 1e-14;
+/// A coefficient below this share of its magnitude is a cancellation to zero.
+inline constexpr double kCancellation = 1e-12;
 
 /// A Thevenin/Norton equivalent: v_oc and i_sc as linear combinations of the inputs
 /// (entry 0, the state, is 0 for the storage element's own equivalent).

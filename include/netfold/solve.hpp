@@ -127,6 +127,7 @@ class Solution {
 
   Wave observable_wave(const LinearForm& form, const Segment& segment) const;
   LinearForm observable_form(const Observable& obs, const NodalSystem& sys, bool want_current) const;
+  std::string undefined_observable_text(const Observable& obs, const NodalSystem& sys, const Segment& seg) const;
 };
 
 /// Solves the circuit over its window. Throws InputError for a circuit the method cannot
