@@ -661,11 +661,11 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
       for (ElementId i = 0; i < el.size() && touching == kNone; ++i)
         if (el[i].pos == n || el[i].neg == n) touching = i;
       s.warnings_.push_back(fmt::format(
-          "node{} {} {} no path to the reference in any segment (line {}, {}): {} voltages against it are undefined; "
+          "node{} {} {} no path to the reference in any segment (line {}, {}): {} against the reference {} no value; "
           "connect the sub-network or remove it (a misspelt node name does this)",
           group.size() > 1 ? "s" : "", node_names(c, group), group.size() > 1 ? "have" : "has",
-          touching != kNone ? el[touching].loc.line : 0, touching != kNone ? el[touching].name : "", 
-          group.size() > 1 ? "their" : "its"));
+          touching != kNone ? el[touching].loc.line : 0, touching != kNone ? el[touching].name : "",
+          group.size() > 1 ? "their voltages" : "its voltage", group.size() > 1 ? "have" : "has"));
     }
   }
 
