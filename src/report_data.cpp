@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
+#include "json_fields.hpp"
 #include "netfold/report.hpp"
 #include "netfold/units.hpp"
 
@@ -17,17 +18,12 @@ namespace {
 
 constexpr double kRadToDeg = 180.0 / std::numbers::pi;
 
-// JSON has no infinity or NaN: those become null (R_th = ∞ and τ = ∞ are documented so).
-nlohmann::json number(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr); }
-
-nlohmann::json optional_number(const std::optional<double>& v) { return v ? number(*v) : nlohmann::json(nullptr); }
-
 nlohmann::json phasors_json(const Drive& d) {
   auto arr = nlohmann::json::array();
   for (const auto& p : d.phasors)
-    arr.push_back({{"frequency", number(p.frequency)},
-                   {"magnitude", number(std::abs(p.value))},
-                   {"phase_deg", number(std::arg(p.value) * kRadToDeg)}});
+    arr.push_back({{"frequency", detail::json_number(p.frequency)},
+                   {"magnitude", detail::json_number(std::abs(p.value))},
+                   {"phase_deg", detail::json_number(std::arg(p.value) * kRadToDeg)}});
   return arr;
 }
 
@@ -148,34 +144,34 @@ std::string solve_json(const SolveReport& report) {
     const Element& st = c.element(sol.storage());
     j["storage"] = {{"name", st.name},
                     {"kind", std::string(kind_keyword(st.kind))},
-                    {"value", number(st.value)},
+                    {"value", detail::json_number(st.value)},
                     {"unit", st.kind == ElementKind::capacitor ? "F" : "H"}};
   } else {
     j["storage"] = nullptr;
   }
-  j["window"] = {{"from", number(sol.window().from)}, {"to", number(sol.window().to)}};
-  j["resolution"] = number(sol.resolution());
+  j["window"] = {{"from", detail::json_number(sol.window().from)}, {"to", detail::json_number(sol.window().to)}};
+  j["resolution"] = detail::json_number(sol.resolution());
   static const char* kSources[] = {"attribute", "option", "steady_state", "undetermined", "none"};
-  j["initial_state"] = {{"value", number(sol.initial_state())},
+  j["initial_state"] = {{"value", detail::json_number(sol.initial_state())},
                         {"source", kSources[static_cast<int>(sol.initial_source())]}};
   auto segs = nlohmann::json::array();
   for (const auto& s : sol.segments()) {
     nlohmann::json js{{"number", s.number},
-                      {"from", number(s.from)},
-                      {"to", number(s.to)},
-                      {"rth", number(s.equivalent.rth)},
-                      {"tau", number(s.tau)},
-                      {"state_start", number(s.state_start)},
+                      {"from", detail::json_number(s.from)},
+                      {"to", detail::json_number(s.to)},
+                      {"rth", detail::json_number(s.equivalent.rth)},
+                      {"tau", detail::json_number(s.tau)},
+                      {"state_start", detail::json_number(s.state_start)},
                       {"changes", s.changes}};
     if (s.voc_defined) {
-      js["vth_dc"] = number(s.voc.dc);
+      js["vth_dc"] = detail::json_number(s.voc.dc);
       js["vth_phasors"] = phasors_json(s.voc);
     } else {
       js["vth_dc"] = nullptr;
       js["vth_phasors"] = nullptr;
     }
     if (s.isc_defined) {
-      js["isc_dc"] = number(s.isc.dc);
+      js["isc_dc"] = detail::json_number(s.isc.dc);
       js["isc_phasors"] = phasors_json(s.isc);
     } else {
       js["isc_dc"] = nullptr;
@@ -188,38 +184,29 @@ std::string solve_json(const SolveReport& report) {
   nlohmann::json obs = nlohmann::json::object();
   for (std::size_t i = 0; i < sol.observables().size(); ++i) {
     const Figures& f = report.figures[i];
-    obs[sol.observables()[i].text] = {{"peak", number(f.peak)},
-                                      {"t_peak", number(f.t_peak)},
-                                      {"max", number(f.max)},
-                                      {"t_max", number(f.t_max)},
-                                      {"min", number(f.min)},
-                                      {"t_min", number(f.t_min)},
-                                      {"final", number(f.final_value)},
-                                      {"steady_amplitude", optional_number(f.amplitude)},
-                                      {"steady_phase_deg", f.phase ? number(*f.phase * kRadToDeg) : nlohmann::json(nullptr)},
-                                      {"steady_dc", optional_number(f.dc)},
-                                      {"settling_time", optional_number(f.settling_time)}};
+    obs[sol.observables()[i].text] = {{"peak", detail::json_number(f.peak)},
+                                      {"t_peak", detail::json_number(f.t_peak)},
+                                      {"max", detail::json_number(f.max)},
+                                      {"t_max", detail::json_number(f.t_max)},
+                                      {"min", detail::json_number(f.min)},
+                                      {"t_min", detail::json_number(f.t_min)},
+                                      {"final", detail::json_number(f.final_value)},
+                                      {"steady_amplitude", detail::json_number(f.amplitude)},
+                                      {"steady_phase_deg", f.phase ? detail::json_number(*f.phase * kRadToDeg) : nlohmann::json(nullptr)},
+                                      {"steady_dc", detail::json_number(f.dc)},
+                                      {"settling_time", detail::json_number(f.settling_time)}};
   }
   j["observables"] = obs;
   auto totals = nlohmann::json::object();
   for (const auto& t : report.totals)
-    totals[c.element(t.element).name] = {{"energy", number(t.energy)}, {"i2t", number(t.i2t)}};
+    totals[c.element(t.element).name] = {{"energy", detail::json_number(t.energy)}, {"i2t", detail::json_number(t.i2t)}};
   j["energy"] = totals;
-  auto ratings = nlohmann::json::array();
-  for (const auto& r : report.ratings)
-    ratings.push_back({{"element", c.element(r.element).name},
-                       {"quantity", r.quantity},
-                       {"rated", number(r.rated)},
-                       {"actual", number(r.actual)},
-                       {"used_percent", number(r.used_percent)},
-                       {"exceeded", r.exceeded},
-                       {"worst_case", r.worst_case}});
-  j["ratings"] = ratings;
+  j["ratings"] = detail::json_ratings(c, report.ratings);
   if (report.verification) {
     const auto& v = *report.verification;
     j["verification"] = {{"method", v.method},
-                         {"max_rel_error", number(v.max_rel_error)},
-                         {"rtol", number(v.rtol)},
+                         {"max_rel_error", detail::json_number(v.max_rel_error)},
+                         {"rtol", detail::json_number(v.rtol)},
                          {"passed", v.passed},
                          {"steps", v.steps},
                          {"rhs_evals", v.rhs_evals}};
@@ -416,19 +403,19 @@ PortEquivalent port_equivalent(const Solution& sol, std::optional<std::pair<Node
 std::string equivalent_json(const PortEquivalent& eq, const Solution& sol) {
   nlohmann::json j;
   j["port"] = eq.port;
-  j["at"] = number(eq.at);
+  j["at"] = detail::json_number(eq.at);
   j["segment"] = eq.segment->number;
-  j["rth"] = number(eq.rth);
-  j["gth"] = eq.rth == 0.0 ? nlohmann::json(nullptr) : number(1.0 / eq.rth);
-  j["vth_dc"] = eq.voc_defined ? number(eq.voc.dc) : nlohmann::json(nullptr);
+  j["rth"] = detail::json_number(eq.rth);
+  j["gth"] = eq.rth == 0.0 ? nlohmann::json(nullptr) : detail::json_number(1.0 / eq.rth);
+  j["vth_dc"] = eq.voc_defined ? detail::json_number(eq.voc.dc) : nlohmann::json(nullptr);
   j["vth_phasors"] = eq.voc_defined ? phasors_json(eq.voc) : nlohmann::json(nullptr);
-  j["isc_dc"] = eq.isc_defined ? number(eq.isc.dc) : nlohmann::json(nullptr);
+  j["isc_dc"] = eq.isc_defined ? detail::json_number(eq.isc.dc) : nlohmann::json(nullptr);
   j["isc_phasors"] = eq.isc_defined ? phasors_json(eq.isc) : nlohmann::json(nullptr);
   if (!eq.at_storage) {
-    j["vth_state_coefficient"] = number(eq.state_coefficient);
-    j["state_value"] = number(eq.state_value);
+    j["vth_state_coefficient"] = detail::json_number(eq.state_coefficient);
+    j["state_value"] = detail::json_number(eq.state_value);
   }
-  j["tau"] = eq.at_storage ? number(eq.segment->tau) : nlohmann::json(nullptr);
+  j["tau"] = eq.at_storage ? detail::json_number(eq.segment->tau) : nlohmann::json(nullptr);
   (void)sol;
   return j.dump(2) + "\n";
 }

@@ -5,14 +5,11 @@
 #include <fmt/ostream.h>
 #include <nlohmann/json.hpp>
 
+#include "json_fields.hpp"
 #include "netfold/report.hpp"
 #include "netfold/units.hpp"
 
 namespace netfold {
-
-namespace {
-nlohmann::json number(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr); }
-}  // namespace
 
 VerificationSummary summarize_verification(const VerifyReport& r) {
   VerificationSummary s;
@@ -54,23 +51,23 @@ void write_verify_text(std::ostream& out, const VerifyReport& r, const Solution&
 std::string verify_json(const VerifyReport& r) {
   nlohmann::json j;
   j["method"] = r.method;
-  j["rtol"] = number(r.rtol);
+  j["rtol"] = detail::json_number(r.rtol);
   j["passed"] = r.passed;
-  j["max_rel_error"] = number(r.max_rel_error);
-  j["t_at"] = number(r.t_at);
+  j["max_rel_error"] = detail::json_number(r.max_rel_error);
+  j["t_at"] = detail::json_number(r.t_at);
   nlohmann::json obs = nlohmann::json::object();
   for (const auto& o : r.observables)
-    obs[o.name] = {{"max_rel_error", number(o.max_rel_error)},
-                   {"t_at", number(o.t_at)},
-                   {"max_abs_error", number(o.max_abs_error)},
-                   {"max_closed", number(o.max_closed)}};
+    obs[o.name] = {{"max_rel_error", detail::json_number(o.max_rel_error)},
+                   {"t_at", detail::json_number(o.t_at)},
+                   {"max_abs_error", detail::json_number(o.max_abs_error)},
+                   {"max_closed", detail::json_number(o.max_closed)}};
   j["observables"] = obs;
   j["steps"] = r.stats.steps;
   j["rhs_evals"] = r.stats.rhs_evals;
   j["error_test_failures"] = r.stats.error_test_failures;
   j["nonlinear_conv_failures"] = r.stats.nonlinear_conv_failures;
   j["samples"] = r.samples;
-  j["integrator_rtol"] = number(r.integrator_rtol);
+  j["integrator_rtol"] = detail::json_number(r.integrator_rtol);
   j["message"] = r.message;
   j["notes"] = r.notes;
   return j.dump(2) + "\n";

@@ -8,6 +8,7 @@
 #include <fmt/ostream.h>
 #include <nlohmann/json.hpp>
 
+#include "json_fields.hpp"
 #include "netfold/units.hpp"
 
 namespace netfold {
@@ -269,10 +270,6 @@ void write_worst_text(std::ostream& out, const WorstReport& report, const Soluti
   }
 }
 
-namespace {
-nlohmann::json number(double v) { return std::isfinite(v) ? nlohmann::json(v) : nlohmann::json(nullptr); }
-}  // namespace
-
 std::string worst_json(const WorstReport& report, const Circuit& c) {
   nlohmann::json j;
   auto sweeps = nlohmann::json::array();
@@ -280,36 +277,27 @@ std::string worst_json(const WorstReport& report, const Circuit& c) {
     nlohmann::json results = nlohmann::json::object();
     const char* unit = "";
     for (const auto& ex : res.observables) {
-      results[ex.name] = {{"worst_peak", number(ex.worst)},
-                          {"at", number(ex.worst_at)},
-                          {"t_peak", number(ex.t_peak)},
-                          {"best_peak", number(ex.best)},
-                          {"best_at", number(ex.best_at)},
-                          {"steady_peak", ex.steady_peak ? number(*ex.steady_peak) : nlohmann::json(nullptr)}};
+      results[ex.name] = {{"worst_peak", detail::json_number(ex.worst)},
+                          {"at", detail::json_number(ex.worst_at)},
+                          {"t_peak", detail::json_number(ex.t_peak)},
+                          {"best_peak", detail::json_number(ex.best)},
+                          {"best_at", detail::json_number(ex.best_at)},
+                          {"steady_peak", ex.steady_peak ? detail::json_number(*ex.steady_peak) : nlohmann::json(nullptr)}};
     }
     unit = argument_unit(res.sweep, c);
     for (auto& [name, value] : results.items()) value["at_unit"] = unit;
     auto ratings = nlohmann::json::array();
     for (const auto& ex : res.ratings)
-      ratings.push_back({{"name", ex.name}, {"worst", number(ex.worst)}, {"at", number(ex.worst_at)}});
+      ratings.push_back({{"name", ex.name}, {"worst", detail::json_number(ex.worst)}, {"at", detail::json_number(ex.worst_at)}});
     sweeps.push_back({{"target", res.sweep.text},
-                      {"from", number(res.sweep.from)},
-                      {"to", number(res.sweep.to)},
+                      {"from", detail::json_number(res.sweep.from)},
+                      {"to", detail::json_number(res.sweep.to)},
                       {"grid_points", res.grid.size()},
                       {"results", results},
                       {"ratings", ratings}});
   }
   j["sweeps"] = sweeps;
-  auto ratings = nlohmann::json::array();
-  for (const auto& r : report.ratings)
-    ratings.push_back({{"element", c.element(r.element).name},
-                       {"quantity", r.quantity},
-                       {"rated", number(r.rated)},
-                       {"actual", number(r.actual)},
-                       {"used_percent", number(r.used_percent)},
-                       {"exceeded", r.exceeded},
-                       {"worst_case", r.worst_case}});
-  j["ratings"] = ratings;
+  j["ratings"] = detail::json_ratings(c, report.ratings);
   return j.dump(2) + "\n";
 }
 

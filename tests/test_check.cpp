@@ -17,45 +17,18 @@
 
 #include <fmt/format.h>
 
+#include "temp_dir.hpp"
 #include "netfold/check.hpp"
 #include "netfold/diagnostics.hpp"
 #include "netfold/parse.hpp"
 
 using namespace netfold;
 namespace fs = std::filesystem;
+using netfold_test::TempDir;
+using netfold_test::read_file;
+using netfold_test::write_file;
 
 namespace {
-
-class TempDir {
- public:
-  TempDir() {
-    static int counter = 0;
-    path_ = fs::temp_directory_path() / fmt::format("netfold_check_{}_{}", ::getpid(), ++counter);
-    fs::remove_all(path_);
-    fs::create_directories(path_);
-  }
-  ~TempDir() {
-    std::error_code ec;
-    fs::remove_all(path_, ec);
-  }
-  const fs::path& path() const { return path_; }
-
- private:
-  fs::path path_;
-};
-
-void write_file(const fs::path& p, const std::string& text) {
-  fs::create_directories(p.parent_path());
-  std::ofstream out(p, std::ios::binary);
-  out << text;
-}
-
-std::string read_file(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::ostringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
 
 // An RC of 1 kohm and 1 µF (tau = 1 ms) with one claim that holds and one of `extra`.
 std::string rc(const std::string& extra = "") {

@@ -13,6 +13,7 @@
 
 #include <fmt/format.h>
 
+#include "temp_dir.hpp"
 #include "netfold/golden.hpp"
 #include "netfold/parse.hpp"
 #include "netfold/report.hpp"
@@ -20,39 +21,11 @@
 
 using namespace netfold;
 namespace fs = std::filesystem;
+using netfold_test::TempDir;
+using netfold_test::read_file;
+using netfold_test::write_file;
 
 namespace {
-
-// A fresh directory under the system's temporary directory, removed at the end of the test.
-class TempDir {
- public:
-  TempDir() {
-    static int counter = 0;
-    path_ = fs::temp_directory_path() / fmt::format("netfold_golden_{}_{}", ::getpid(), ++counter);
-    fs::remove_all(path_);
-    fs::create_directories(path_);
-  }
-  ~TempDir() {
-    std::error_code ec;
-    fs::remove_all(path_, ec);
-  }
-  const fs::path& path() const { return path_; }
-
- private:
-  fs::path path_;
-};
-
-void write_file(const fs::path& p, const std::string& text) {
-  std::ofstream out(p, std::ios::binary);
-  out << text;
-}
-
-std::string read_file(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::ostringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
 
 // A valve-like RL circuit switched on and off; `r` is the coil resistance in ohm.
 std::string coil(double r, const std::string& extra = "") {

@@ -19,46 +19,13 @@
 #include <nlohmann/json.hpp>
 
 #include "fuzz/exercise.hpp"
+#include "temp_dir.hpp"
 
 namespace fs = std::filesystem;
+using netfold_test::TempDir;
+using netfold_test::read_file;
 
 namespace {
-
-std::string read_text(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::stringstream ss;
-  ss << in.rdbuf();
-  return ss.str();
-}
-
-/// A fresh, empty folder under the system's temporary directory, removed at scope exit.
-class TempDir {
- public:
-  TempDir() {
-    static std::atomic<int> counter{0};
-    path_ = fs::temp_directory_path() /
-            ("netfold_output_safety_" + std::to_string(::getpid()) + "_" + std::to_string(counter++));
-    fs::remove_all(path_);
-    fs::create_directories(path_);
-  }
-  ~TempDir() {
-    std::error_code ec;
-    fs::remove_all(path_, ec);
-  }
-  TempDir(const TempDir&) = delete;
-  TempDir& operator=(const TempDir&) = delete;
-  const fs::path& path() const { return path_; }
-  /// Names of the entries in the folder, sorted.
-  std::vector<std::string> entries() const {
-    std::vector<std::string> names;
-    for (const auto& e : fs::directory_iterator(path_)) names.push_back(e.path().filename().string());
-    std::sort(names.begin(), names.end());
-    return names;
-  }
-
- private:
-  fs::path path_;
-};
 
 struct Run {
   int status = -1;
@@ -80,8 +47,8 @@ Run run_netfold(const std::vector<std::string>& args, const TempDir& dir) {
   int raw = std::system(cmd.c_str());
   Run r;
   r.status = WIFEXITED(raw) ? WEXITSTATUS(raw) : 128 + (WIFSIGNALED(raw) ? WTERMSIG(raw) : 0);
-  r.out = read_text(out);
-  r.err = read_text(err);
+  r.out = read_file(out);
+  r.err = read_file(err);
   fs::remove(out);
   fs::remove(err);
   return r;
@@ -119,7 +86,7 @@ TEST_CASE("no report, CSV, JSON or SVG of any test circuit holds a NaN or an inf
                          "--svg", svg.string()},
                         dir);
     INFO(file.string() << ": exit " << r.status << "\n" << r.err);
-    const std::string source = read_text(file);
+    const std::string source = read_file(file);
     // 0: solved; 1: solved, a rating exceeded; 2: refused with a message. 3 or a signal: a bug.
     CHECK((r.status == 0 || r.status == 1 || r.status == 2));
     if (r.status == 2) {
@@ -133,15 +100,15 @@ TEST_CASE("no report, CSV, JSON or SVG of any test circuit holds a NaN or an inf
     auto stdout_token = netfold_fuzz::find_non_finite_text(r.out, source);
     CHECK_FALSE(stdout_token.has_value());
     if (stdout_token) UNSCOPED_INFO("report: " << *stdout_token);
-    auto csv_problem = netfold_fuzz::check_csv(read_text(csv));
+    auto csv_problem = netfold_fuzz::check_csv(read_file(csv));
     if (csv_problem) UNSCOPED_INFO("csv: " << *csv_problem);
     CHECK_FALSE(csv_problem.has_value());
-    const std::string json_text = read_text(json);
+    const std::string json_text = read_file(json);
     auto json_problem = netfold_fuzz::check_json(json_text);
     if (json_problem) UNSCOPED_INFO("json: " << *json_problem);
     CHECK_FALSE(json_problem.has_value());
     CHECK_NOTHROW(nlohmann::json::parse(json_text));
-    auto svg_token = netfold_fuzz::find_non_finite_token(read_text(svg), source);
+    auto svg_token = netfold_fuzz::find_non_finite_token(read_file(svg), source);
     if (svg_token) UNSCOPED_INFO("svg: " << *svg_token);
     CHECK_FALSE(svg_token.has_value());
   }
@@ -240,7 +207,7 @@ TEST_CASE("a failing run leaves an existing output file as it was", "[output]") 
   { std::ofstream(csv) << "previous contents\n"; }
   Run r = run_netfold({"solve", "tests/degenerate/voltage_source_loop.nf", "--no-verify", "--csv", csv.string()}, dir);
   CHECK(r.status == 2);
-  CHECK(read_text(csv) == "previous contents\n");
+  CHECK(read_file(csv) == "previous contents\n");
   CHECK(dir.entries() == std::vector<std::string>{"T.csv"});
 }
 
@@ -253,9 +220,9 @@ TEST_CASE("a successful run replaces the output files whole and leaves no tempor
   INFO(r.err);
   REQUIRE(r.status == 0);
   CHECK(dir.entries() == std::vector<std::string>{"T.csv", "T.json"});
-  std::string text = read_text(csv);
+  std::string text = read_file(csv);
   CHECK(text.rfind("t,coil_l.i,@a\n", 0) == 0);
   CHECK(text.find("previous") == std::string::npos);
   CHECK(text.back() == '\n');
-  CHECK_NOTHROW(nlohmann::json::parse(read_text(json)));
+  CHECK_NOTHROW(nlohmann::json::parse(read_file(json)));
 }

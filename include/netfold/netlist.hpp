@@ -202,18 +202,22 @@ struct Window {
   SourceLoc loc;
 };
 
-/// A flat open-addressing index from names to ids: the slots hold ids only and the names are
-/// read from the owning table, so a million names cost 4–8 bytes each and no allocation.
+/// A flat open-addressing index from names to ids. Each slot holds an id and 32 bits of its
+/// name's hash; the names themselves are read from the owning table only when the hash bits
+/// match, so a probe past another name costs no visit to that table (a cache miss each at a
+/// million names) and a million names cost 16 bytes each and no allocation.
 class NameIndex {
  public:
   /// The id whose name (per `name_of`) equals `name`, or kNone.
   template <typename NameOf>
   std::uint32_t find(std::string_view name, NameOf&& name_of) const {
     if (slots_.empty()) return kNone;
-    for (std::size_t i = hash(name) & mask_;; i = (i + 1) & mask_) {
-      std::uint32_t id = slots_[i];
-      if (id == kNone) return kNone;
-      if (name_of(id) == name) return id;
+    const std::size_t h = hash(name);
+    const auto tag = static_cast<std::uint32_t>(h >> 32);
+    for (std::size_t i = h & mask_;; i = (i + 1) & mask_) {
+      const Slot& slot = slots_[i];
+      if (slot.id == kNone) return kNone;
+      if (slot.tag == tag && name_of(slot.id) == name) return slot.id;
     }
   }
   /// Adds `id` under `name` (the caller made sure the name is new).
@@ -230,22 +234,34 @@ class NameIndex {
   }
 
  private:
-  std::vector<std::uint32_t> slots_;
+  struct Slot {
+    std::uint32_t id = kNone;
+    std::uint32_t tag = 0;  ///< the high 32 bits of the name's hash
+  };
+  std::vector<Slot> slots_;
   std::size_t mask_ = 0;
   std::size_t count_ = 0;
-  static std::size_t hash(std::string_view s) { return std::hash<std::string_view>{}(s); }
+  static std::size_t hash(std::string_view s) {
+    // Mixed so that the high bits (the tag) and the low bits (the slot) are independent even
+    // where std::hash is weak in one half.
+    std::uint64_t x = std::hash<std::string_view>{}(s);
+    x ^= x >> 33;
+    x *= 0xff51afd7ed558ccdULL;
+    x ^= x >> 33;
+    return static_cast<std::size_t>(x);
+  }
   void place(std::size_t h, std::uint32_t id) {
     std::size_t i = h & mask_;
-    while (slots_[i] != kNone) i = (i + 1) & mask_;
-    slots_[i] = id;
+    while (slots_[i].id != kNone) i = (i + 1) & mask_;
+    slots_[i] = Slot{id, static_cast<std::uint32_t>(static_cast<std::uint64_t>(h) >> 32)};
   }
   template <typename NameOf>
   void grow(NameOf&& name_of) {
-    std::vector<std::uint32_t> old = std::move(slots_);
-    slots_.assign(old.empty() ? 64 : 2 * old.size(), kNone);
+    std::vector<Slot> old = std::move(slots_);
+    slots_.assign(old.empty() ? 64 : 2 * old.size(), Slot{});
     mask_ = slots_.size() - 1;
-    for (std::uint32_t id : old)
-      if (id != kNone) place(hash(name_of(id)), id);
+    for (const Slot& slot : old)
+      if (slot.id != kNone) place(hash(name_of(slot.id)), slot.id);
   }
 };
 
