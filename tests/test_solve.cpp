@@ -4,6 +4,7 @@
 #include <numbers>
 
 #include <Eigen/LU>
+#include <fmt/format.h>
 
 #include "engine_helpers.hpp"
 #include "netfold/mna.hpp"
@@ -241,6 +242,20 @@ TEST_CASE("an event after the end of the window is ignored with a warning", "[so
   bool warned = false;
   for (const auto& w : s->warnings()) warned |= w.find("after the end of the window") != std::string::npos;
   CHECK(warned);
+}
+
+TEST_CASE("isolated parts of a circuit are warned about, ten by name and the rest counted", "[solve]") {
+  std::string text = "V1: voltage-source a -> gnd, dc 5 V\nR1: resistor a -> b, 1 kohm\nC1: capacitor b -> gnd, 1 uF\n";
+  for (int i = 0; i < 30; ++i) text += fmt::format("Rx{}: resistor x{} -> y{}, 1 kohm\n", i, i, i);
+  auto s = solve_text(text);
+  std::vector<std::string> parts;
+  for (const auto& w : s->warnings())
+    if (w.find("no path to the reference") != std::string::npos) parts.push_back(w);
+  REQUIRE(parts.size() == 11);
+  CHECK(parts.front().find("nodes x0, y0 have no path to the reference in any segment (line 4, Rx0)") != std::string::npos);
+  CHECK(parts.back() == "20 more parts of the circuit have no path to the reference in any segment");
+  // The storage element's own answer is untouched: τ = 1 ms.
+  CHECK_REL(s->segments().front().tau, 1e-3, 1e-12);
 }
 
 TEST_CASE("an inductor whose loop opens with zero current is held at zero, else it is an error", "[solve]") {
