@@ -190,7 +190,7 @@ class Configurations {
         throw NumericError(fmt::format("cross-check: the nodal equations of {} have a structural problem the "
                                        "engine did not report",
                                        where));
-    c->lu = factor_nodal_matrix(c->system.matrix());
+    c->lu = factor_nodal_matrix(c->system.matrix(), c->system.symmetric_positive_definite());
     if (c->lu->rcond() < kSingularRcond)
       throw NumericError(fmt::format("cross-check: the nodal matrix of {} is singular (reciprocal condition "
                                      "{:.1e} < {:.0e})",
