@@ -190,6 +190,9 @@ class Configurations {
         throw NumericError(fmt::format("cross-check: the nodal equations of {} have a structural problem the "
                                        "engine did not report",
                                        where));
+    // The same solver choice as the engine (its agreement across solvers is tested in
+    // test_solvers): independence comes from solving the full system at every step for the
+    // state's own right-hand side, not from a different factorization.
     c->lu = factor_nodal_matrix(c->system.matrix(), c->system.symmetric_positive_definite());
     if (c->lu->rcond() < kSingularRcond)
       throw NumericError(fmt::format("cross-check: the nodal matrix of {} is singular (reciprocal condition "
