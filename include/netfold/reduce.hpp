@@ -30,7 +30,7 @@ class ReducedNetwork {
   std::vector<double> magnitudes(const LinearForm& form) const;
   /// Reciprocal condition estimate of the equilibrated nodal matrix (0 = singular).
   double rcond() const { return rcond_; }
-  /// Factorization used ("dense LU" or "KLU").
+  /// Factorization used ("dense LU", "sparse LDLT" or "KLU").
   const char* solver_name() const { return solver_name_; }
   /// Unknowns that take part in a near-null vector of G (empty unless singular and small).
   const std::vector<std::uint32_t>& singular_unknowns() const { return singular_unknowns_; }
