@@ -88,12 +88,18 @@ Equivalent storage_equivalent(const Circuit& circuit, const ReducedNetwork& netw
 }
 
 const ReducedNetwork& NetworkCache::get(const SwitchPositions& positions, PortMode mode) {
-  for (const auto& entry : entries_)
-    if (entry.mode == mode && entry.positions == positions) return *entry.network;
-  BuildOptions options;
-  options.mode = mode;
-  entries_.push_back({positions, mode, std::make_unique<ReducedNetwork>(*circuit_, positions, options)});
-  return *entries_.back().network;
+  auto [it, fresh] = networks_.try_emplace(Key{positions.closed, mode});
+  if (fresh) {
+    BuildOptions options;
+    options.mode = mode;
+    try {
+      it->second = std::make_unique<ReducedNetwork>(*circuit_, positions, options);
+    } catch (...) {
+      networks_.erase(it);  // leave no empty entry behind a failed build
+      throw;
+    }
+  }
+  return *it->second;
 }
 
 }  // namespace netfold

@@ -307,7 +307,7 @@ double level_before_zero(const Waveform& w) {
 }  // namespace
 
 const ReducedNetwork& Solution::network(const Segment& segment) const {
-  return cache_->get(segment.positions, segment.mode);
+  return segment.network ? *segment.network : cache_->get(segment.positions, segment.mode);
 }
 
 Drive Solution::drive_of(const std::vector<double>& c, const Segment& segment) const {
@@ -682,6 +682,7 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
            fmt::format("the response grows beyond any representable value in {}; shorten the window",
                        segment_text(c, seg)));
     state_scale = std::max(state_scale, std::fabs(state));
+    seg.network = net;
     s.segments_.push_back(std::move(seg));
   }
 

@@ -12,6 +12,7 @@
 
 #include <memory>
 #include <optional>
+#include <unordered_map>
 #include <vector>
 
 #include "netfold/mna.hpp"
@@ -72,12 +73,20 @@ class NetworkCache {
 
  private:
   const Circuit* circuit_;
-  struct Entry {
-    SwitchPositions positions;
+  // Keyed by the switch positions and the port mode. A hash map: a sequence of many events
+  // has as many configurations, and a linear search made building a solution quadratic in
+  // them (each segment keeps a pointer to its network afterwards; see Segment::network).
+  struct Key {
+    std::vector<bool> closed;
     PortMode mode;
-    std::unique_ptr<ReducedNetwork> network;
+    bool operator==(const Key& other) const { return mode == other.mode && closed == other.closed; }
   };
-  std::vector<Entry> entries_;
+  struct KeyHash {
+    std::size_t operator()(const Key& k) const {
+      return std::hash<std::vector<bool>>{}(k.closed) * 31 + static_cast<std::size_t>(k.mode);
+    }
+  };
+  std::unordered_map<Key, std::unique_ptr<ReducedNetwork>, KeyHash> networks_;
 };
 
 }  // namespace netfold

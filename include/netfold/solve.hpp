@@ -66,6 +66,9 @@ struct Segment {
   Wave state;                     ///< the closed-form state over [from, to]
   double rcond = 1.0;             ///< condition estimate of the segment's equations
   const char* solver = "dense LU";
+  /// The segment's reduced network, owned by the solution's NetworkCache (found once, so that
+  /// evaluating observables does not look it up again per segment).
+  const ReducedNetwork* network = nullptr;
   /// True when τ is negative (a controlled source makes the response grow).
   bool unstable() const { return rate > 0.0; }
 };
