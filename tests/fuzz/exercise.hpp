@@ -31,6 +31,10 @@ namespace netfold_fuzz {
 /// together they keep one input's work to well under the fuzzer's 10 s timeout.
 inline constexpr double kMaxWindow = 1.0;
 inline constexpr double kMaxSamples = 20000.0;
+/// At most this many periods of the fastest sinusoid: the peak search works per period, and a
+/// 1 MHz source over 1 s (10^6 periods, 1.6 s in a Release build) takes 7 s or more under the
+/// fuzzer's instrumentation, close to its 10 s hang limit.
+inline constexpr double kMaxPeriods = 20000.0;
 /// Points per plotted series.
 inline constexpr std::size_t kPlotPoints = 400;
 
@@ -186,11 +190,17 @@ inline std::optional<std::string> check_json(std::string_view json) {
 }
 
 /// The window the path solves over: the circuit's own (declared or default) when it is at
-/// most kMaxWindow long and needs at most kMaxSamples samples, else the start of it, cut.
+/// most kMaxWindow long, needs at most kMaxSamples samples and holds at most kMaxPeriods
+/// periods of the fastest sinusoid, else the start of it, cut.
 inline std::optional<netfold::Window> bounded_window(const netfold::Solution& s) {
   const netfold::Window& w = s.window();
   double span = w.to - w.from;
   double limit = std::min(kMaxWindow, kMaxSamples * s.resolution());
+  double f_fast = 0.0;
+  for (const auto& e : s.circuit().elements())
+    for (const auto& term : e.waveform.sinusoids)
+      if (term.amplitude != 0.0) f_fast = std::max(f_fast, term.frequency);
+  if (f_fast > 0.0) limit = std::min(limit, kMaxPeriods / f_fast);
   if (span <= limit) return std::nullopt;
   netfold::Window cut = w;
   cut.to = w.from + limit;
