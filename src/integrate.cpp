@@ -7,6 +7,7 @@
 #include <memory>
 #include <numbers>
 #include <optional>
+#include <unordered_map>
 
 #include <cvode/cvode.h>
 #include <fmt/format.h>
@@ -179,8 +180,11 @@ class Configurations {
       : circuit_(circuit), observables_(observables) {}
 
   const Configuration& get(const SwitchPositions& positions, PortMode mode, const std::string& where) {
-    for (const auto& c : items_)
-      if (c->mode == mode && c->positions == positions) return *c;
+    // Found by hash: a sequence of many events has as many configurations, and a linear
+    // search over them made the cross-check quadratic in the events.
+    std::vector<bool> key = positions.closed;
+    key.push_back(mode == PortMode::held_at_zero);
+    if (auto it = index_.find(key); it != index_.end()) return *items_[it->second];
     auto c = std::make_unique<Configuration>();
     c->positions = positions;
     c->mode = mode;
@@ -220,6 +224,7 @@ class Configurations {
       if (v.defined) c->voltage_forms.push_back(std::move(v));
       if (i.defined) c->current_forms.push_back(std::move(i));
     }
+    index_.emplace(std::move(key), items_.size());
     items_.push_back(std::move(c));
     return *items_.back();
   }
@@ -229,6 +234,7 @@ class Configurations {
   const Circuit& circuit_;
   const std::vector<Observable>& observables_;
   std::vector<std::unique_ptr<Configuration>> items_;
+  std::unordered_map<std::vector<bool>, std::size_t> index_;  // positions + mode → items_
 };
 
 // The right-hand side CVODE integrates, dx/dt = f(t, x) = q(t, x)/S: q the port quantity
