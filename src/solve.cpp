@@ -68,6 +68,14 @@ std::string node_names(const Circuit& c, const std::vector<NodeId>& ids) {
   throw InputError(c.diagnostic(loc, std::move(message)));
 }
 
+// The elements of a fault other than the storage element (the ones the message blames).
+std::vector<ElementId> all_but(const std::vector<ElementId>& ids, ElementId storage) {
+  std::vector<ElementId> out;
+  for (ElementId id : ids)
+    if (id != storage) out.push_back(id);
+  return out;
+}
+
 // A switch that closes at the start of the segment and so creates the fault.
 ElementId switch_closing_at(const Circuit& c, const std::vector<ElementId>& ids, double t) {
   for (ElementId id : ids) {
@@ -86,9 +94,7 @@ ElementId switch_closing_at(const Circuit& c, const std::vector<ElementId>& ids,
   const auto& el = c.elements();
   switch (p.kind) {
     case Kind::capacitor_loop: {
-      std::vector<ElementId> others;
-      for (ElementId id : p.elements)
-        if (id != storage) others.push_back(id);
+      const std::vector<ElementId> others = all_but(p.elements, storage);
       fail(c, el[storage].loc,
            fmt::format("capacitor {} is connected straight across {} in {}: nothing limits its current, so "
                        "its voltage would have to jump (R_th = 0); add the series resistance that is really "
@@ -129,9 +135,7 @@ ElementId switch_closing_at(const Circuit& c, const std::vector<ElementId>& ids,
     case Kind::current_cut_set: {
       ElementId first = p.elements.front();
       if (storage != kNone && std::find(p.elements.begin(), p.elements.end(), storage) != p.elements.end()) {
-        std::vector<ElementId> others;
-        for (ElementId id : p.elements)
-          if (id != storage) others.push_back(id);
+        const std::vector<ElementId> others = all_but(p.elements, storage);
         fail(c, el[storage].loc,
              fmt::format("inductor {} is in series with current source {} in {}: the source fixes the inductor's "
                          "current, which would have to jump to the source's value; add a resistance across {} or "
@@ -192,7 +196,7 @@ ElementId switch_closing_at(const Circuit& c, const std::vector<ElementId>& ids,
 
 // Resistances whose ratio passes 1e15 cannot both act in one double-precision solve: a
 // conductance 1e15 times another is lost in its rounding. Refused with the two named.
-constexpr double kMaxResistanceSpan = 1e15;
+constexpr double kMaxResistanceSpan = 1e15;  // the message says "1e15": change both together
 // Below 1e-18 s a time constant means an impulsive circuit (a near-zero resistance in series
 // with the capacitor): its response is a step and the currents near-infinite impulses.
 constexpr double kShortestTau = 1e-18;
