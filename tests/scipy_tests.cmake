@@ -4,3 +4,10 @@
 add_test(NAME scipy_crosscheck
          COMMAND /usr/bin/python3 ${PROJECT_SOURCE_DIR}/tests/scipy_crosscheck.py $<TARGET_FILE:netfold>)
 set_tests_properties(scipy_crosscheck PROPERTIES SKIP_RETURN_CODE 77 TIMEOUT 600 LABELS "scipy;verify")
+
+# Every figure of every .nf file in the repository against the dump recorded before the stage
+# rework (tests/figures_baseline.py): 1e-12 relative, changes on purpose listed in the script.
+add_test(NAME figures_baseline
+         COMMAND /usr/bin/python3 ${PROJECT_SOURCE_DIR}/tests/figures_baseline.py compare
+                 $<TARGET_FILE:netfold> ${PROJECT_SOURCE_DIR})
+set_tests_properties(figures_baseline PROPERTIES TIMEOUT 600 LABELS "baseline")

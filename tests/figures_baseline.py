@@ -1,0 +1,143 @@
+#!/usr/bin/env python3
+"""Every figure of every .nf file in the repository, before and after a rework of the engine.
+
+`record` runs `solve --json`, `worst --json` and `equiv --json` on every tracked .nf file and
+stores exit status and output in tests/data/figures_baseline.json. `compare` runs them again
+and fails on any difference beyond 1e-12 relative (the floor of a number is 1e-12 of the
+largest magnitude in the same JSON object, so that a rounding zero such as 2e-17 beside 345 is
+not compared relatively), on a changed exit status, or on a changed text.
+
+A figure changed on purpose (a wrong answer fixed) is listed in INTENDED_CHANGES with its
+reason; the closing note of the change lists the same entries.
+
+Usage: figures_baseline.py (record|compare) NETFOLD_BINARY [SOURCE_DIR]
+"""
+import fnmatch
+import json
+import math
+import os
+import subprocess
+import sys
+
+BASELINE = os.path.join("tests", "data", "figures_baseline.json")
+COMMANDS = {
+    "solve": ["solve", "{file}", "--json", "-", "--no-verify"],
+    "worst": ["worst", "{file}", "--json", "-"],
+    "equiv": ["equiv", "{file}", "--json", "-"],
+}
+REL = 1e-12
+
+# (file glob, command, JSON path glob) -> why the figure changed on purpose.
+INTENDED_CHANGES = {
+}
+
+
+def nf_files(source_dir):
+    out = subprocess.run(["git", "ls-files", "*.nf"], cwd=source_dir, capture_output=True, text=True, check=True)
+    return sorted(line for line in out.stdout.splitlines() if line)
+
+
+def run_all(binary, source_dir):
+    figures = {}
+    for f in nf_files(source_dir):
+        entry = {}
+        for name, args in COMMANDS.items():
+            argv = [binary] + [a.format(file=f) for a in args]
+            p = subprocess.run(argv, cwd=source_dir, capture_output=True, text=True, errors="replace", timeout=300)
+            result = {"exit": p.returncode}
+            if p.returncode in (0, 1) and p.stdout.strip().startswith("{"):
+                result["json"] = json.loads(p.stdout)
+            else:
+                result["error"] = p.stderr.strip().splitlines()[0] if p.stderr.strip() else ""
+            entry[name] = result
+        figures[f] = entry
+    return figures
+
+
+def intended(file, command, path):
+    for (fglob, cmd, pglob), why in INTENDED_CHANGES.items():
+        if cmd == command and fnmatch.fnmatch(file, fglob) and fnmatch.fnmatch(path, pglob):
+            return why
+    return None
+
+
+def object_scale(obj):
+    if isinstance(obj, dict):
+        values = obj.values()
+    elif isinstance(obj, list):
+        values = obj
+    else:
+        return 0.0
+    return max((abs(v) for v in values if isinstance(v, (int, float)) and not isinstance(v, bool)), default=0.0)
+
+
+def compare_values(old, new, path, scale, diffs):
+    if isinstance(old, dict) and isinstance(new, dict):
+        s = object_scale(old)
+        for k in sorted(set(old) | set(new)):
+            if k not in old or k not in new:
+                diffs.append((f"{path}/{k}", old.get(k, "<absent>"), new.get(k, "<absent>")))
+            else:
+                compare_values(old[k], new[k], f"{path}/{k}", s, diffs)
+    elif isinstance(old, list) and isinstance(new, list):
+        if len(old) != len(new):
+            diffs.append((path, f"{len(old)} items", f"{len(new)} items"))
+            return
+        s = object_scale(old)
+        for i, (a, b) in enumerate(zip(old, new)):
+            compare_values(a, b, f"{path}/{i}", s, diffs)
+    elif isinstance(old, bool) or isinstance(new, bool) or isinstance(old, str) or old is None or new is None:
+        if old != new:
+            diffs.append((path, old, new))
+    elif isinstance(old, (int, float)) and isinstance(new, (int, float)):
+        floor = REL * scale
+        if not (abs(old - new) <= REL * max(abs(old), abs(new)) or abs(old - new) <= floor):
+            diffs.append((path, old, new))
+    elif old != new:
+        diffs.append((path, old, new))
+
+
+def main():
+    if len(sys.argv) < 3 or sys.argv[1] not in ("record", "compare"):
+        print(__doc__)
+        return 2
+    mode, binary = sys.argv[1], os.path.abspath(sys.argv[2])
+    source_dir = sys.argv[3] if len(sys.argv) > 3 else "."
+    figures = run_all(binary, source_dir)
+    path = os.path.join(source_dir, BASELINE)
+    if mode == "record":
+        with open(path, "w") as fh:
+            json.dump(figures, fh, indent=1, sort_keys=True)
+            fh.write("\n")
+        print(f"recorded {len(figures)} files")
+        return 0
+    with open(path) as fh:
+        baseline = json.load(fh)
+    failed = passed = 0
+    for f in sorted(set(baseline) | set(figures)):
+        if f not in baseline:
+            # A file added after the baseline: nothing to compare against.
+            continue
+        if f not in figures:
+            print(f"FAIL {f}: in the baseline but no longer in the repository")
+            failed += 1
+            continue
+        for command in COMMANDS:
+            diffs = []
+            compare_values(baseline[f][command], figures[f][command], "", 0.0, diffs)
+            unexplained = [d for d in diffs if not intended(f, command, d[0])]
+            if unexplained:
+                failed += 1
+                print(f"FAIL {f} {command}:")
+                for p, a, b in unexplained[:12]:
+                    print(f"    {p}: {a!r} -> {b!r}")
+                if len(unexplained) > 12:
+                    print(f"    ... and {len(unexplained) - 12} more")
+            else:
+                passed += 1
+    print(f"{passed} passed, {failed} failed")
+    return 1 if failed else 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
