@@ -24,7 +24,7 @@
 #include <string_view>
 
 #include "bench_common.hpp"
-#include "linear_solver.hpp"
+#include "network/linear_solver.hpp"
 #include "netfold/mna.hpp"
 #include "network_generator.hpp"
 

@@ -10,7 +10,7 @@
 #include <cstring>
 
 #include "bench_common.hpp"
-#include "linear_solver.hpp"
+#include "network/linear_solver.hpp"
 #include "matrix_market.hpp"
 #include "netfold/mna.hpp"
 #include "network_generator.hpp"

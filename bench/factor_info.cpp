@@ -14,7 +14,7 @@
 #include <Eigen/CholmodSupport>
 #include <Eigen/KLUSupport>
 
-#include "linear_solver.hpp"
+#include "network/linear_solver.hpp"
 #include "netfold/mna.hpp"
 #include "netfold/parse.hpp"
 

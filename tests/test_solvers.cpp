@@ -1,4 +1,4 @@
-// The three factorizations of the nodal matrix (src/linear_solver.hpp) — dense LU, KLU and, for
+// The three factorizations of the nodal matrix (src/network/linear_solver.hpp) — dense LU, KLU and, for
 // symmetric positive definite matrices, a sparse Cholesky (LDLT) — solve the same systems to the same
 // answer, and the engine's results do not depend on which one a circuit's size selects.
 //
@@ -11,7 +11,7 @@
 
 #include "../bench/network_generator.hpp"
 #include "engine_helpers.hpp"
-#include "linear_solver.hpp"
+#include "network/linear_solver.hpp"
 #include "netfold/mna.hpp"
 
 using namespace netfold;

@@ -16,7 +16,7 @@
 #include <sunlinsol/sunlinsol_dense.h>
 #include <sunmatrix/sunmatrix_dense.h>
 
-#include "linear_solver.hpp"
+#include "network/linear_solver.hpp"
 #include "netfold/units.hpp"
 
 namespace netfold {

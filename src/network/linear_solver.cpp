@@ -1,4 +1,4 @@
-#include "linear_solver.hpp"
+#include "network/linear_solver.hpp"
 
 #include <cmath>
 

@@ -5,7 +5,7 @@
 #include <fmt/ostream.h>
 #include <nlohmann/json.hpp>
 
-#include "json_fields.hpp"
+#include "report/json_fields.hpp"
 #include "netfold/report.hpp"
 #include "netfold/units.hpp"
 

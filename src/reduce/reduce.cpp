@@ -5,7 +5,7 @@
 
 #include <Eigen/LU>
 
-#include "linear_solver.hpp"
+#include "network/linear_solver.hpp"
 
 namespace netfold {
 

@@ -8,7 +8,7 @@
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
 
-#include "json_fields.hpp"
+#include "report/json_fields.hpp"
 #include "netfold/report.hpp"
 #include "netfold/units.hpp"
 

@@ -8,7 +8,7 @@
 #include <fmt/ostream.h>
 #include <nlohmann/json.hpp>
 
-#include "json_fields.hpp"
+#include "report/json_fields.hpp"
 #include "netfold/units.hpp"
 
 namespace netfold {

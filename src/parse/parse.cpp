@@ -15,7 +15,7 @@
 
 #include <fmt/format.h>
 
-#include "lexer.hpp"
+#include "parse/lexer.hpp"
 
 namespace netfold {
 namespace {

@@ -1,4 +1,4 @@
-#include "lexer.hpp"
+#include "parse/lexer.hpp"
 
 #include <array>
 #include <cstring>
