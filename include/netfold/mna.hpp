@@ -103,6 +103,8 @@ class NodalSystem {
 
   /// v(node) against the reference.
   LinearForm node_voltage(NodeId node) const;
+  /// v(a) − v(b); defined when both nodes are on the same connected part.
+  LinearForm node_difference(NodeId a, NodeId b) const;
   /// v(pos) − v(neg) of element `id`.
   LinearForm element_voltage(ElementId id) const;
   /// Current through element `id` from its first node to its second.
@@ -163,6 +165,21 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
 
 /// Sorts a form's terms, merging repeated indices and dropping zeros.
 void compact(LinearForm& form);
+
+/// An observable as linear forms of one configuration: its value is `value`, or the product
+/// value·current for a power (`X.p` = v·i, with `value` the voltage).
+struct ObservableForm {
+  LinearForm value;                   ///< the observable itself, or the voltage of a power
+  std::optional<LinearForm> current;  ///< powers only: the current factor
+  /// False when the observable has no value in this configuration (a floating part).
+  bool defined() const { return value.defined && (!current || current->defined); }
+};
+
+/// The one definition of every observable kind (`@n`, `@a - @b`, `X.v`, `X.i`, `X.p`) as
+/// linear forms of `system`'s unknowns and inputs. Every path that evaluates an observable
+/// from the nodal equations — the closed form, CSV, claims, worst case, equivalents — goes
+/// through it.
+ObservableForm observable_form(const NodalSystem& system, const Observable& observable);
 
 /// Values of every input at time t: u[0] = state, u[1 + k] = source k's waveform at t.
 Eigen::VectorXd input_values(const Circuit& circuit, const std::vector<ElementId>& sources,

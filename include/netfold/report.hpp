@@ -111,8 +111,11 @@ struct PortEquivalent {
   Drive voc;                   ///< DC + phasors, V
   Drive isc;                   ///< A
   bool voc_defined = true, isc_defined = true;
-  double state_coefficient = 0.0;  ///< v_oc's share of the storage state, V per V or V per A
-  double state_value = 0.0;        ///< the state at the chosen time
+  /// v_oc's share of the storage state, V per V or V per A; voc.dc includes it times state_value.
+  double state_coefficient = 0.0;
+  /// i_sc's share of the storage state, A per V or A per A; isc.dc includes it times state_value.
+  double isc_state_coefficient = 0.0;
+  double state_value = 0.0;        ///< the state at the chosen time, held for the equivalent
   double at = 0.0;                 ///< the chosen time
   bool at_storage = true;
 };

@@ -129,7 +129,7 @@ class Solution {
   std::vector<std::string> warnings_;
 
   Wave observable_wave(const LinearForm& form, const Segment& segment) const;
-  LinearForm observable_form(const Observable& obs, const NodalSystem& sys, bool want_current) const;
+  Piece observable_piece(const ObservableForm& form, const Segment& segment) const;
   std::string undefined_observable_text(const Observable& obs, const NodalSystem& sys, const Segment& seg) const;
 };
 

@@ -480,6 +480,23 @@ LinearForm NodalSystem::node_voltage(NodeId node) const {
   return f;
 }
 
+LinearForm NodalSystem::node_difference(NodeId a, NodeId b) const {
+  LinearForm f = voltage_form(a, b, 1.0);
+  f.defined = component_[a] == component_[b];
+  return f;
+}
+
+ObservableForm observable_form(const NodalSystem& sys, const Observable& obs) {
+  switch (obs.kind) {
+    case ObservableKind::node_voltage: return {sys.node_voltage(obs.node_a), std::nullopt};
+    case ObservableKind::node_difference: return {sys.node_difference(obs.node_a, obs.node_b), std::nullopt};
+    case ObservableKind::element_voltage: return {sys.element_voltage(obs.element), std::nullopt};
+    case ObservableKind::element_current: return {sys.element_current(obs.element), std::nullopt};
+    case ObservableKind::element_power: return {sys.element_voltage(obs.element), sys.element_current(obs.element)};
+  }
+  throw NumericError("unknown observable kind");
+}
+
 LinearForm NodalSystem::element_voltage(ElementId id) const {
   const Element& e = circuit_->elements()[id];
   LinearForm f = voltage_form(e.pos, e.neg, 1.0);

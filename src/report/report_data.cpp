@@ -314,6 +314,19 @@ void write_output(const std::string& path, std::string_view content, std::ostrea
   }
 }
 
+namespace {
+
+// The storage element is held at its value at --at, so it adds a constant share to both the
+// open-circuit voltage and the short-circuit current at the port: i_sc is the current that
+// really flows in a short between the two nodes (the element's discharge included).
+PortEquivalent hold_state(PortEquivalent eq) {
+  if (eq.voc_defined) eq.voc.dc += eq.state_coefficient * eq.state_value;
+  if (eq.isc_defined) eq.isc.dc += eq.isc_state_coefficient * eq.state_value;
+  return eq;
+}
+
+}  // namespace
+
 PortEquivalent port_equivalent(const Solution& sol, std::optional<std::pair<NodeId, NodeId>> port, double at) {
   const Circuit& c = sol.circuit();
   PortEquivalent eq;
@@ -356,14 +369,12 @@ PortEquivalent port_equivalent(const Solution& sol, std::optional<std::pair<Node
   for (const auto& p : tested.system().problems()) shorted |= p.kind == TopologyProblem::Kind::test_port_loop;
   if (shorted) {
     // An ideal branch already joins the two nodes: R_th = 0, v_oc is that branch's voltage.
-    LinearForm f = plain.node_voltage(a);
-    for (auto [x, k] : plain.node_voltage(b).unknowns) f.unknowns.push_back({x, -k});
-    std::vector<double> k = sol.network(seg).coefficients(f);
+    std::vector<double> k = sol.network(seg).coefficients(plain.node_difference(a, b));
     eq.rth = 0.0;
     eq.voc = sol.drive_of(k, seg);
     eq.state_coefficient = k[0];
     eq.isc_defined = false;
-    return eq;
+    return hold_state(eq);
   }
   if (tested.rcond() < kSingularRcond)
     throw NumericError(fmt::format("the equations with a test source at {} are singular (reciprocal condition {:.1e})",
@@ -382,22 +393,22 @@ PortEquivalent port_equivalent(const Solution& sol, std::optional<std::pair<Node
       // Current sources push into an open port: its voltage is unbounded, a short's current is not.
       eq.voc_defined = false;
       eq.isc = sol.drive_of(k, seg);
-      return eq;
+      eq.isc_state_coefficient = k[0];
+      return hold_state(eq);
     }
-    LinearForm f = plain.node_voltage(a);
-    for (auto [x, kk] : plain.node_voltage(b).unknowns) f.unknowns.push_back({x, -kk});
-    std::vector<double> kv = sol.network(seg).coefficients(f);
+    std::vector<double> kv = sol.network(seg).coefficients(plain.node_difference(a, b));
     eq.voc = sol.drive_of(kv, seg);
     eq.state_coefficient = kv[0];
-    return eq;  // i_sc = 0
+    return hold_state(eq);  // i_sc = 0
   }
   eq.isc = sol.drive_of(k, seg);
+  eq.isc_state_coefficient = k[0];
   eq.rth = -1.0 / ktt;
   std::vector<double> kv = k;
   for (double& v : kv) v = -v / ktt;
   eq.voc = sol.drive_of(kv, seg);
   eq.state_coefficient = kv[0];
-  return eq;
+  return hold_state(eq);
 }
 
 std::string equivalent_json(const PortEquivalent& eq, const Solution& sol) {
@@ -413,6 +424,7 @@ std::string equivalent_json(const PortEquivalent& eq, const Solution& sol) {
   j["isc_phasors"] = eq.isc_defined ? phasors_json(eq.isc) : nlohmann::json(nullptr);
   if (!eq.at_storage) {
     j["vth_state_coefficient"] = detail::json_number(eq.state_coefficient);
+    j["isc_state_coefficient"] = detail::json_number(eq.isc_state_coefficient);
     j["state_value"] = detail::json_number(eq.state_value);
   }
   j["tau"] = eq.at_storage ? detail::json_number(eq.segment->tau) : nlohmann::json(nullptr);

@@ -322,6 +322,19 @@ void write_explanation(std::ostream& out, const Solution& sol) {
   }
 }
 
+namespace {
+
+// The storage element's share of a port's v_oc or i_sc, which the DC figure above includes.
+void held_state_line(std::ostream& out, double coefficient, const char* unit, const PortEquivalent& eq,
+                     const Solution& sol) {
+  if (coefficient == 0.0 || eq.at_storage) return;
+  const Element& st = sol.circuit().element(sol.storage());
+  fmt::print(out, "        (DC includes {} from {} held at {}, its value at t = {})\n",
+             si(coefficient * eq.state_value, unit), st.name, si(eq.state_value, state_unit(st)), si(eq.at, "s"));
+}
+
+}  // namespace
+
 void write_equivalent_text(std::ostream& out, const PortEquivalent& eq, const Solution& sol) {
   const Circuit& c = sol.circuit();
   fmt::print(out, "netfold equiv: {}{}\n", c.title().empty() ? c.source().path() : c.title(),
@@ -333,18 +346,14 @@ void write_equivalent_text(std::ostream& out, const PortEquivalent& eq, const So
     for (const auto& p : eq.voc.phasors)
       fmt::print(out, "        {} ∠ {} at {}\n", si(std::abs(p.value), "V"), degrees(std::arg(p.value)),
                  si(p.frequency, "Hz"));
-    if (eq.state_coefficient != 0.0) {
-      const Element& st = c.element(sol.storage());
-      fmt::print(out, "        {} {} × {}(t)  ({} = {} at t = {})\n", eq.state_coefficient < 0 ? "-" : "+",
-                 format_si(std::fabs(eq.state_coefficient), "", 6), st.name, st.name,
-                 si(eq.state_value, state_unit(st)), si(eq.at, "s"));
-    }
+    held_state_line(out, eq.state_coefficient, "V", eq, sol);
   } else {
     fmt::print(out, "  v_oc undefined (R_th = ∞ with a current source driving the port)\n");
   }
   fmt::print(out, "Norton: G_th = {}\n", eq.rth == 0.0 ? "∞" : si(1.0 / eq.rth, "S"));
   if (eq.isc_defined) {
     fmt::print(out, "  i_sc: DC {}\n", si(eq.isc.dc, "A"));
+    held_state_line(out, eq.isc_state_coefficient, "A", eq, sol);
     for (const auto& p : eq.isc.phasors)
       fmt::print(out, "        {} ∠ {} at {}\n", si(std::abs(p.value), "A"), degrees(std::arg(p.value)),
                  si(p.frequency, "Hz"));

@@ -337,23 +337,6 @@ const Segment& Solution::segment_at(double t) const {
   return *(it - 1);
 }
 
-LinearForm Solution::observable_form(const Observable& obs, const NodalSystem& sys, bool want_current) const {
-  switch (obs.kind) {
-    case ObservableKind::node_voltage: return sys.node_voltage(obs.node_a);
-    case ObservableKind::node_difference: {
-      LinearForm a = sys.node_voltage(obs.node_a), b = sys.node_voltage(obs.node_b);
-      for (auto [x, c] : b.unknowns) a.unknowns.push_back({x, -c});
-      a.defined = sys.component_of(obs.node_a) == sys.component_of(obs.node_b);
-      return a;
-    }
-    case ObservableKind::element_voltage: return sys.element_voltage(obs.element);
-    case ObservableKind::element_current: return sys.element_current(obs.element);
-    case ObservableKind::element_power:
-      return want_current ? sys.element_current(obs.element) : sys.element_voltage(obs.element);
-  }
-  return {};
-}
-
 Wave Solution::observable_wave(const LinearForm& form, const Segment& segment) const {
   std::vector<double> c = network(segment).coefficients(form);
   return affine_wave(segment.state, c[0], drive_of(c, segment));
@@ -402,24 +385,25 @@ std::vector<Piece> Solution::pieces(const Observable& obs) const {
   out.reserve(segments_.size());
   for (const auto& seg : segments_) {
     const NodalSystem& sys = network(seg).system();
-    LinearForm f = observable_form(obs, sys, false);
-    if (!f.defined) {
+    const ObservableForm form = observable_form(sys, obs);
+    if (!form.defined()) {
       SourceLoc loc = obs.loc.line > 0 ? obs.loc : (storage_ != kNone ? circuit_->element(storage_).loc : SourceLoc{});
       throw InputError(circuit_->diagnostic(loc, undefined_observable_text(obs, sys, seg)));
     }
-    Piece p{observable_wave(f, seg), std::nullopt};
-    if (obs.kind == ObservableKind::element_power) p.g = observable_wave(observable_form(obs, sys, true), seg);
-    out.push_back(std::move(p));
+    out.push_back(observable_piece(form, seg));
   }
   return out;
 }
 
+Piece Solution::observable_piece(const ObservableForm& form, const Segment& segment) const {
+  Piece p{observable_wave(form.value, segment), std::nullopt};
+  if (form.current) p.g = observable_wave(*form.current, segment);
+  return p;
+}
+
 double Solution::value(const Observable& obs, double t) const {
   const Segment& seg = segment_at(t);
-  const NodalSystem& sys = network(seg).system();
-  Piece p{observable_wave(observable_form(obs, sys, false), seg), std::nullopt};
-  if (obs.kind == ObservableKind::element_power) p.g = observable_wave(observable_form(obs, sys, true), seg);
-  return p.value(t);
+  return observable_piece(observable_form(network(seg).system(), obs), seg).value(t);
 }
 
 Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<NetworkCache> cache) {
