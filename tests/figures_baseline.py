@@ -29,7 +29,20 @@ REL = 1e-12
 
 # (file glob, command, JSON path glob) -> why the figure changed on purpose.
 INTENDED_CHANGES = {
+    # Ties (the spec: "where several arguments reach the same worst value, any of them may be
+    # reported"): the argument moves with rounding at 1e-16 once coefficients are refined.
+    ("netlists/night_light_dropper.nf", "solve", "/json/observables/R_inrush.p/t_min"):
+        "tie: a resistor's power is 0 W at every current zero",
+    ("netlists/night_light_dropper.nf", "worst", "/json/sweeps/0/ratings/[124]/at"):
+        "tie: steady-state mean powers and the window's energy do not depend on the closing angle",
+    ("tests/degenerate/resistances_span_600_decades.nf", "*", "/error"):
+        "issue 12 item 7: the documented resistance span is now 1e13 (refined solve), the message says so",
 }
+
+# The argument of a smooth maximum found by golden-section search is fixed only to about √ε of
+# the range (the value there is flat to second order): `at` fields are compared to 1e-6.
+ARGUMENT_KEYS = ("at", "worst_at", "best_at")
+ARGUMENT_REL = 1e-6
 
 
 def nf_files(source_dir):
@@ -56,7 +69,7 @@ def run_all(binary, source_dir):
 
 def intended(file, command, path):
     for (fglob, cmd, pglob), why in INTENDED_CHANGES.items():
-        if cmd == command and fnmatch.fnmatch(file, fglob) and fnmatch.fnmatch(path, pglob):
+        if fnmatch.fnmatch(command, cmd) and fnmatch.fnmatch(file, fglob) and fnmatch.fnmatch(path, pglob):
             return why
     return None
 
@@ -77,6 +90,9 @@ def compare_values(old, new, path, scale, diffs):
         for k in sorted(set(old) | set(new)):
             if k not in old or k not in new:
                 diffs.append((f"{path}/{k}", old.get(k, "<absent>"), new.get(k, "<absent>")))
+            elif k in ARGUMENT_KEYS and isinstance(old[k], (int, float)) and isinstance(new[k], (int, float)):
+                if abs(old[k] - new[k]) > ARGUMENT_REL * max(abs(old[k]), abs(new[k]), s):
+                    diffs.append((f"{path}/{k}", old[k], new[k]))
             else:
                 compare_values(old[k], new[k], f"{path}/{k}", s, diffs)
     elif isinstance(old, list) and isinstance(new, list):

@@ -122,6 +122,10 @@ class NodalSystem {
   bool node_fixed(NodeId node) const { return fixed_index_[node] != kNone; }
   /// coef·(v(p) − v(q)) as a form (q may be kNone for v(p) alone).
   LinearForm voltage_form(NodeId p, NodeId q, double coef) const;
+  /// G and B as their element stamps, unsummed (repeated positions add up), for residuals
+  /// computed without the rounding of the assembled sums.
+  const std::vector<Eigen::Triplet<double>>& matrix_stamps() const { return g_stamps_; }
+  const std::vector<Eigen::Triplet<double>>& input_stamps() const { return b_stamps_; }
   /// Right-hand side B·u.
   Eigen::VectorXd right_hand_side(const Eigen::VectorXd& u) const { return b_ * u; }
 
@@ -151,6 +155,8 @@ class NodalSystem {
   bool symmetric_positive_definite_ = false;
   Eigen::SparseMatrix<double> g_;
   Eigen::SparseMatrix<double> b_;
+  std::vector<Eigen::Triplet<double>> g_stamps_;
+  std::vector<Eigen::Triplet<double>> b_stamps_;
 
   LinearForm sensed_current(ElementId id) const;
   bool switch_closed(ElementId id) const;
@@ -163,7 +169,7 @@ class NodalSystem {
 NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& positions,
                                const BuildOptions& options = {});
 
-/// Sorts a form's terms, merging repeated indices and dropping zeros.
+/// Sorts a form's terms, merging repeated indices where their sum is exact, and drops zeros.
 void compact(LinearForm& form);
 
 /// An observable as linear forms of one configuration: its value is `value`, or the product

@@ -19,6 +19,8 @@
 
 namespace netfold {
 
+class LinearSolver;
+
 /// One configuration, solved for every input.
 class ReducedNetwork {
  public:
@@ -29,6 +31,10 @@ class ReducedNetwork {
   /// Σ|terms| that made each coefficient: a coefficient far below its magnitude is what is
   /// left of a cancellation, zero up to rounding (relative error ~1e-16·magnitude/|c|).
   std::vector<double> magnitudes(const LinearForm& form) const;
+  /// True when `coefficient` (the form's coefficient of input `input`) is what rounding leaves
+  /// of a cancellation, that is zero: below the error estimate of the refined solve times the
+  /// magnitude of the terms that made it (kCancellation of it where the solve was not refined).
+  bool negligible(const LinearForm& form, std::uint32_t input, double coefficient) const;
   /// Reciprocal condition estimate of the equilibrated nodal matrix (0 = singular).
   double rcond() const { return rcond_; }
   /// Factorization used ("dense LU", "sparse LDLT" or "KLU").
@@ -39,6 +45,13 @@ class ReducedNetwork {
  private:
   NodalSystem system_;
   Eigen::MatrixXd response_;  // X = G⁻¹·B: unknowns × inputs
+  Eigen::MatrixXd response_lo_;          // the refined remainder: X ≈ response_ + response_lo_
+  std::vector<double> refined_error_;    // per input: relative size of the last correction
+  Eigen::MatrixXd perturbed_, perturbed_lo_;  // X of the network with every stamp moved by ±4ε
+  void refine_response(const LinearSolver& solver);
+  void estimate_value_noise();
+  std::vector<double> refined_coefficients(const LinearForm& form, const Eigen::MatrixXd& x,
+                                           const Eigen::MatrixXd& x_lo) const;
   double rcond_ = 1.0;
   const char* solver_name_ = "dense LU";
   std::vector<std::uint32_t> singular_unknowns_;
@@ -46,8 +59,16 @@ class ReducedNetwork {
 
 /// Below this reciprocal condition estimate the equations are treated as singular.
 inline constexpr double kSingularRcond = 1e-14;
-/// A coefficient below this share of its magnitude is a cancellation to zero.
+/// A coefficient below this share of its magnitude is a cancellation to zero (networks too
+/// large to refine; see ReducedNetwork::negligible).
 inline constexpr double kCancellation = 1e-12;
+/// X = G⁻¹B is refined to about double-double accuracy while stamps × inputs stay below this
+/// (the 10⁶-node grids of the benchmarks keep the plain solve).
+inline constexpr double kRefinementWorkLimit = 2e7;
+/// Relative rounding of the element values themselves (4ε): what a refined coefficient cannot
+/// resolve. With resistances spanning at most 10¹³ (kMaxResistanceSpan), a real coefficient is
+/// at least ~10⁻¹³ of its terms, well above it.
+inline constexpr double kValueRounding = 8.9e-16;
 
 /// A Thevenin/Norton equivalent: v_oc and i_sc as linear combinations of the inputs
 /// (entry 0, the state, is 0 for the storage element's own equivalent).

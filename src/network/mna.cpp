@@ -398,6 +398,10 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
   sys.g_.setFromTriplets(g.begin(), g.end());
   sys.b_.resize(n_unknown, n_input);
   sys.b_.setFromTriplets(b.begin(), b.end());
+  // The stamps as they were, before the sums of setFromTriplets rounded them: a 10 GΩ leak
+  // beside 10 mΩ is lost to 1e-4 in the summed diagonal, but not in its own stamp.
+  sys.g_stamps_ = std::move(g);
+  sys.b_stamps_ = std::move(b);
 
   // Currents of the eliminated branches, from the KCL of their far node, leaves first: the
   // current leaving a node through its tree branch balances what leaves through the rest.
@@ -438,8 +442,12 @@ void compact(LinearForm& f) {
     std::sort(terms.begin(), terms.end(), [](const auto& a, const auto& b) { return a.first < b.first; });
     std::size_t out = 0;
     for (std::size_t k = 0; k < terms.size(); ++k) {
-      if (out > 0 && terms[out - 1].first == terms[k].first) {
-        terms[out - 1].second += terms[k].second;
+      // Merged only where the sum is exact: −100 S and −1e-10 S of one input would round the
+      // leak's share to 1e-4 (compensated evaluation then keeps both terms' digits).
+      const bool same = out > 0 && terms[out - 1].first == terms[k].first;
+      const double sum = same ? terms[out - 1].second + terms[k].second : 0.0;
+      if (same && sum - terms[out - 1].second == terms[k].second && sum - terms[k].second == terms[out - 1].second) {
+        terms[out - 1].second = sum;
       } else {
         terms[out++] = terms[k];
       }

@@ -383,7 +383,7 @@ PortEquivalent port_equivalent(const Solution& sol, std::optional<std::pair<Node
   std::vector<double> k = tested.coefficients(test_current);
   const std::uint32_t t = tested.system().test_port_input();
   double ktt = k[t];
-  if (std::fabs(ktt) <= kCancellation * tested.magnitudes(test_current)[t]) ktt = 0.0;
+  if (tested.negligible(test_current, t, ktt)) ktt = 0.0;
   k.resize(t);  // the state and the sources; drop the test input
   if (ktt == 0.0) {
     eq.rth = kInfinity;
