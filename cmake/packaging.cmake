@@ -21,19 +21,19 @@ set(CPACK_DEBIAN_PACKAGE_SECTION electronics)
 set(CPACK_DEBIAN_PACKAGE_PRIORITY optional)
 set(CPACK_DEBIAN_PACKAGE_SHLIBDEPS ON)
 set(CPACK_DEBIAN_PACKAGE_CONTROL_STRICT_PERMISSION ON)
-# Extended description: one paragraph, continuation lines start with a space (Debian policy 5.6.13).
-set(CPACK_DEBIAN_PACKAGE_DESCRIPTION "${CPACK_PACKAGE_DESCRIPTION_SUMMARY}
- netfold reads a circuit with one capacitor or inductor in its own text format (.nf),
- reduces it to the Thevenin and Norton equivalent the storage element sees between
- switching events, and writes the exact closed-form response of every voltage and
- current. It finds worst cases over the closing angle, the residual state and the
- closing time, rates stress against the parts' ratings, and cross-checks every answer
- against a numerical integration (SUNDIALS CVODE). Files with claims are a regression
- suite for a circuit library in CI.
- .
- This package holds the netfold command, its manual page, the example circuits, the
- C++ library with its headers, CMake package and pkg-config file, and the Python
- module 'netfold'.")
+# The extended description; CPack puts the summary above it, indents each line and turns the
+# empty line into the paragraph mark " ." (Debian policy 5.6.13).
+set(CPACK_PACKAGE_DESCRIPTION "netfold reads a circuit with one capacitor or inductor in its own text format
+(.nf), reduces it to the Thevenin and Norton equivalent the storage element sees
+between switching events, and writes the exact closed-form response of every
+voltage and current. It finds worst cases over the closing angle, the residual
+state and the closing time, rates stress against the parts' ratings, and
+cross-checks every answer against a numerical integration (SUNDIALS CVODE).
+Files with claims are a regression suite for a circuit library in CI.
+
+This package holds the netfold command, its manual page, the example circuits,
+the C++ library with its headers, CMake package and pkg-config file, and the
+Python module 'netfold'.")
 if(NETFOLD_PYTHON_ENABLED)
   # The module is built for this interpreter's minor version; NumPy carries its waveforms.
   math(EXPR next_minor "${Python3_VERSION_MINOR} + 1")

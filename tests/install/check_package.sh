@@ -19,6 +19,8 @@ field() { dpkg-deb --field "$deb" "$1"; }
 [[ "$(field Package)" == netfold && "$(field Version)" == "$version" ]] || fail "package name or version"
 [[ "$(field Section)" == electronics ]] || fail "section: $(field Section)"
 [[ -n "$(field Maintainer)" && -n "$(field Description)" ]] || fail "no maintainer or description"
+# The extended description is flowed text: one leading space a line, no verbatim (two-space) lines.
+if tail -n +2 <<<"$(field Description)" | grep -q '^  '; then fail "description lines shown verbatim"; fi
 depends="$(field Depends)"
 echo "Depends: $depends"
 # The package names alone, one a line: "libfmt9 (>= 9.1.0+ds1), libc6 (>= 2.34)" -> libfmt9, libc6.
