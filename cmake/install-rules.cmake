@@ -22,6 +22,9 @@ set(NETFOLD_INSTALL_EXAMPLESDIR ${CMAKE_INSTALL_DATADIR}/netfold/examples)
 # installed interface, a helper is replaced by the libraries it stands for, and a dependency
 # that brings no library to link (warnings, a header-only library) is left out. The source
 # tree's include folder becomes the installed one. The build tree keeps everything as it was.
+# (Eigen must stay a PUBLIC dependency of netfold_core while public headers include it, as
+# mna.hpp and reduce.hpp do: as a private one it would be dropped here like any header-only
+# library, and a consumer would miss its include folder.)
 function(netfold_installed_interface target)
   get_target_property(deps ${target} INTERFACE_LINK_LIBRARIES)
   set(rewritten)
