@@ -368,3 +368,34 @@ TEST_CASE("a steady state that is zero but for rounding settles against the wind
   REQUIRE(f.settling_time);
   CHECK_REL(*f.settling_time, tau * std::log(100.0), 1e-6);
 }
+
+TEST_CASE("issue 12 item 8: the peak of a 1 MHz ripple over 2 s is the steady state's, not a sample's", "[solve]") {
+  // 2·10⁶ periods: the first edition sampled one point per period, all at the ripple's zero
+  // crossings, and reported 2.5 nV. Source: RC low-pass magnitude |V_C| = V/√(1 + (ωRC)²)
+  // (textbook, from memory); the transient from 0 V adds nothing above it.
+  auto s = solve_text(
+      "bus: voltage-source s -> gnd, sine 100 mV 1 MHz phase 90 deg\n"
+      "r1: resistor s -> b, 1 ohm\n"
+      "c1: capacitor b -> gnd, 1 mF\n"
+      "watch c1.v, r1.p\n"
+      "window 0 .. 2 s\n");
+  const double w = 2.0 * kPi * 1e6;
+  const double amplitude = 0.1 / std::sqrt(1.0 + (w * 1e-3) * (w * 1e-3));
+  Figures v = figures(s, "c1.v");
+  CHECK_REL(v.peak, amplitude, 1e-9);
+  CHECK_REL(v.max, amplitude, 1e-9);
+  CHECK_REL(v.min, -amplitude, 1e-9);
+  // The resistor's power peaks at (V·ωRC/√(1+(ωRC)²))²/R once the transient has gone.
+  const double i_amp = 0.1 * w * 1e-3 / std::sqrt(1.0 + (w * 1e-3) * (w * 1e-3));
+  CHECK_REL(figures(s, "r1.p").max, i_amp * i_amp * 1.0, 1e-9);
+}
+
+TEST_CASE("issue 12 item 8: a long window whose response is not periodic is refused, not sampled", "[solve]") {
+  // A current source charging a capacitor with no DC path ramps for ever (τ = ∞): 1 MHz over
+  // 100 s is 10⁸ periods with no periodic tail, beyond what can be searched exactly.
+  auto s = solve_text("feed: current-source gnd -> b, dc 1 uA + sine 1 mA 1 MHz\n"
+                      "c1: capacitor b -> gnd, 1 uF\n"
+                      "watch c1.v\n"
+                      "window 0 .. 100 s\nresolution 1 ms\n");
+  CHECK_THROWS_WITH(figures(s, "c1.v"), Catch::Contains("cannot be found exactly"));
+}

@@ -3,6 +3,11 @@
 #include <algorithm>
 #include <cmath>
 #include <numbers>
+#include <optional>
+
+#include <fmt/format.h>
+
+#include "netfold/diagnostics.hpp"
 
 namespace netfold {
 
@@ -187,10 +192,133 @@ double fastest_frequency(const Wave& w) {
 constexpr double kPointsPerPeriod = 24.0;
 constexpr std::size_t kMinPoints = 64;
 constexpr std::size_t kMaxPoints = 2'000'000;
+// A window that would need more points than this (and whose tail is not periodic) is refused:
+// a sampled peak there could miss the true one by orders of magnitude.
+constexpr double kHardMaxPoints = 5e7;
+
+// The common period of a set of frequencies: 1/f_g with every f_i an integer multiple of f_g
+// (to 1e-12), the multiples at most kMaxHarmonicRatio; nothing where there is none (a rounded
+// frequency, or two with no common period within reach).
+constexpr double kMaxHarmonicRatio = 1e9;
+
+std::optional<double> common_frequency(const std::vector<double>& frequencies) {
+  double g = 0.0;
+  for (double f : frequencies) {
+    if (!(f > 0.0)) continue;
+    if (g == 0.0) {
+      g = f;
+      continue;
+    }
+    // Best rational approximation p/q of f/g by continued fractions; then g/q divides both.
+    const double x = f / g;
+    double h0 = 1, h1 = std::floor(x), k0 = 0, k1 = 1, r = x - std::floor(x);
+    while (std::fabs(h1 / k1 - x) > 1e-12 * x && k1 <= kMaxHarmonicRatio && r > 1e-300) {
+      const double a = std::floor(1.0 / r);
+      r = 1.0 / r - a;
+      const double h2 = a * h1 + h0, k2 = a * k1 + k0;
+      h0 = h1, h1 = h2, k0 = k1, k1 = k2;
+    }
+    if (std::fabs(h1 / k1 - x) > 1e-12 * x || k1 > kMaxHarmonicRatio) return std::nullopt;
+    g /= k1;
+  }
+  if (g == 0.0) return std::nullopt;
+  return g;
+}
+
+// The time after which a segment's transient is below rounding of its steady state, or
+// nothing where the response does not settle (a drift, a growing term).
+std::optional<double> transient_end(const Wave& w) {
+  const auto steady = w.steady_state();
+  if (!steady) return std::nullopt;
+  const double rest = std::fabs(w.transient) + (w.a < 0.0 ? std::fabs(w.drift / w.a) : 0.0);
+  if (rest == 0.0 || w.a == 0.0) return w.t0;
+  if (w.a > 0.0) return std::nullopt;
+  double scale = std::fabs(steady->dc);
+  for (const auto& p : steady->phasors) scale += std::abs(p.value);
+  const double decades = std::log(std::max(rest / (1e-17 * std::max(scale, 1e-300)), 1.0));
+  return w.t0 + std::max(40.0, decades) / -w.a;
+}
+
+Wave steady_wave(const Wave& w) {
+  Wave s = w;
+  const Drive d = *w.steady_state();
+  s.a = 0.0;
+  s.offset = d.dc;
+  s.drift = 0.0;
+  s.transient = 0.0;
+  return s;
+}
+
+}  // namespace
+
+namespace {
+
+Extremes sampled_extremes(const Piece& piece, double from, double to, std::size_t n);
+Extremes long_window_extremes(const Piece& piece, double from, double to, double wanted);
+
+Extremes merge(Extremes a, const Extremes& b) {
+  if (b.max > a.max) a.max = b.max, a.t_max = b.t_max;
+  if (b.min < a.min) a.min = b.min, a.t_min = b.t_min;
+  return a;
+}
+
+// A window of more than kMaxPoints/24 periods of the fastest sinusoid: once the transient is
+// below rounding the response is periodic, so its extremes over the rest of the window are
+// those of one common period of its sinusoids (first reached within that period); only the
+// settling head is searched point by point. Where the response has no such period (a drift,
+// frequencies with no common period) the window is searched in full up to kHardMaxPoints and
+// refused beyond, rather than sampled too coarsely.
+Extremes long_window_extremes(const Piece& piece, double from, double to, double wanted) {
+  const auto f_end = transient_end(piece.f);
+  const auto g_end = piece.g ? transient_end(*piece.g) : std::optional<double>(from);
+  std::vector<double> frequencies;
+  for (const Wave* w : {&piece.f, piece.g ? &*piece.g : nullptr})
+    if (w)
+      for (const auto& p : w->phasors) frequencies.push_back(p.frequency);
+  // Products of two sinusoids hold sums and differences of their frequencies: multiples of
+  // the common frequency of the factors all the same.
+  const auto f_common = common_frequency(frequencies);
+  const double f_max = fastest_frequency(piece.f) + (piece.g ? fastest_frequency(*piece.g) : 0.0);
+  if (f_end && g_end && f_common) {
+    const double settle = std::clamp(std::max(*f_end, *g_end), from, to);
+    const double period = 1.0 / *f_common;
+    const double head_points = (settle - from) * f_max * kPointsPerPeriod;
+    const double period_points = period * f_max * kPointsPerPeriod;
+    if (head_points <= kHardMaxPoints && period_points <= kHardMaxPoints) {
+      Extremes ex = settle > from ? find_extremes(piece, from, settle) : find_extremes(piece, from, from);
+      if (settle < to) {
+        Piece steady{steady_wave(piece.f), piece.g ? std::optional<Wave>(steady_wave(*piece.g)) : std::nullopt};
+        ex = merge(ex, find_extremes(steady, settle, std::min(to, settle + period)));
+      }
+      return ex;
+    }
+  }
+  if (wanted > kHardMaxPoints)
+    throw NumericError(fmt::format(
+        "the window holds {:.3g} periods of the fastest sinusoid ({:.6g} Hz) and the response is not periodic "
+        "over it (a drift, a slow transient, or frequencies with no common period): its peak cannot be found "
+        "exactly; shorten the window",
+        (to - from) * f_max, f_max));
+  return sampled_extremes(piece, from, to, static_cast<std::size_t>(wanted));
+}
 
 }  // namespace
 
 Extremes find_extremes(const Piece& piece, double from, double to) {
+  const double span = to - from;
+  const double f_max = fastest_frequency(piece.f) + (piece.g ? fastest_frequency(*piece.g) : 0.0);
+  std::size_t n = kMinPoints;
+  if (f_max > 0.0 && span > 0.0) {
+    const double wanted = std::ceil(span * f_max * kPointsPerPeriod);
+    if (wanted > static_cast<double>(kMaxPoints)) return long_window_extremes(piece, from, to, wanted);
+    n = static_cast<std::size_t>(std::max(wanted, static_cast<double>(kMinPoints)));
+  }
+  return sampled_extremes(piece, from, to, n);
+}
+
+namespace {
+
+Extremes sampled_extremes(const Piece& piece, double from, double to, std::size_t n) {
   Extremes ex;
   double v0 = piece.value(from);
   ex.max = ex.min = v0;
@@ -206,15 +334,9 @@ Extremes find_extremes(const Piece& piece, double from, double to) {
     }
   };
   consider(to, piece.value(to));
-  double span = to - from;
+  const double span = to - from;
   if (!(span > 0.0)) return ex;
 
-  double f_max = fastest_frequency(piece.f) + (piece.g ? fastest_frequency(*piece.g) : 0.0);
-  std::size_t n = kMinPoints;
-  if (f_max > 0.0) {
-    double wanted = std::ceil(span * f_max * kPointsPerPeriod);
-    n = static_cast<std::size_t>(std::clamp(wanted, static_cast<double>(kMinPoints), static_cast<double>(kMaxPoints)));
-  }
   std::vector<double> ts;
   ts.reserve(n + 300);
   for (std::size_t i = 0; i <= n; ++i) ts.push_back(from + span * static_cast<double>(i) / static_cast<double>(n));
@@ -247,6 +369,8 @@ Extremes find_extremes(const Piece& piece, double from, double to) {
   }
   return ex;
 }
+
+}  // namespace
 
 namespace {
 
