@@ -1529,6 +1529,9 @@ TEST_CASE("issue 12 limits: a sweep step finer than the grid limit is refused wi
                       "a step of '0.001' cuts the range of 'V1.phase' into 3.6e+05 intervals, more than the 100000 a "
                       "sweep computes; give a step of at least 0.0036\xC2\xB0");
   REQUIRE_PARSE_ERROR(supply + "sweep C1.initial -1 V .. 1 V step 1 uV\n", 5, 35, "give a step of at least 20 \xC2\xB5V");
+  // A range wider than double precision carries has no grid at all.
+  REQUIRE_PARSE_ERROR(supply + "sweep C1.initial -1e308 V .. 1e308 V\n", 5, 30,
+                      "the range '-1e308 V' .. '1e308 V' is wider than double precision carries");
   // Exactly the limit is accepted.
   Circuit c = parses_ok(supply + "sweep V1.phase 0 .. 360 step 0.0036\n");
   CHECK(c.sweeps().at(0).step.has_value());

@@ -421,6 +421,9 @@ Sweep resolve_sweep(const Scope& scope, const PendingSweep& p) {
   }
   if (!(s.from < s.to))
     fail(p.to.loc, fmt::format("a sweep range must rise: '{}' is not above '{}'", p.to.quote(), p.from.quote()));
+  if (!std::isfinite(s.to - s.from))
+    fail(p.to.loc, fmt::format("the range '{}' .. '{}' is wider than double precision carries; narrow it",
+                               p.from.quote(), p.to.quote()));
   if (s.step && !(*s.step > 0))
     fail(p.step->loc, fmt::format("a sweep step must be positive, found '{}'", p.step->quote()));
   if (s.step) check_sweep_step(s, p, dim);

@@ -1,5 +1,6 @@
 #include "netfold/units.hpp"
 
+#include <algorithm>
 #include <array>
 #include <charconv>
 #include <cmath>
@@ -120,43 +121,47 @@ UnitSuffix make_suffix(int exponent, const UnitEntry* unit) {
 
 bool is_digit(char c) { return c >= '0' && c <= '9'; }
 
-// The double nearest to the decimal `number` × 10^`shift`, rounded once. The digits are
-// rewritten as an integer mantissa and one exponent, which absorbs the shift exactly.
+// The double nearest to the decimal `number` × 10^`shift`, rounded once: the number's mantissa
+// is kept as written and its exponent replaced by exponent + shift, which is exact. Values are
+// short, so the text is rebuilt on the stack: a file of 10⁶ values allocates nothing here.
 Converted exact_decimal(std::string_view number, int shift) {
-  if (number_length(number) != number.size() || number.empty()) return {0.0, ValueFault::not_a_number};
-  std::size_t i = 0;
-  bool negative = number[0] == '-';
-  if (number[0] == '-' || number[0] == '+') ++i;
-  std::string digits;
+  if (number.empty() || number_length(number) != number.size()) return {0.0, ValueFault::not_a_number};
+  const bool negative = number[0] == '-';
+  std::string_view body = number;
+  if (number[0] == '-' || number[0] == '+') body.remove_prefix(1);
+  const std::size_t e_at = body.find_first_of("eE");
+  const std::string_view mantissa = body.substr(0, e_at);
   long long exponent = shift;
-  for (; i < number.size() && is_digit(number[i]); ++i) digits.push_back(number[i]);
-  if (i < number.size() && number[i] == '.') {
-    for (++i; i < number.size() && is_digit(number[i]); ++i) {
-      digits.push_back(number[i]);
-      --exponent;
-    }
-  }
-  if (i < number.size()) {  // (e|E)[+|-]digits; saturated far beyond any double's range
-    ++i;
-    bool minus = number[i] == '-';
-    if (number[i] == '-' || number[i] == '+') ++i;
-    long long e = 0;
-    for (; i < number.size(); ++i) e = std::min<long long>(e * 10 + (number[i] - '0'), 1'000'000'000);
+  if (e_at != std::string_view::npos) {
+    std::string_view digits = body.substr(e_at + 1);
+    const bool minus = digits[0] == '-';
+    if (digits[0] == '-' || digits[0] == '+') digits.remove_prefix(1);
+    long long e = 0;  // saturated far beyond any double's range
+    for (char c : digits) e = std::min<long long>(e * 10 + (c - '0'), 1'000'000'000);
     exponent += minus ? -e : e;
   }
-  std::size_t first = digits.find_first_not_of('0');
-  if (first == std::string::npos) return {negative ? -0.0 : 0.0, ValueFault::none};
-  digits.erase(0, first);
-  // Decimal exponent of the leading digit: above 308 the value overflows, below −308 it is at
-  // best subnormal.
-  const long long magnitude = exponent + static_cast<long long>(digits.size()) - 1;
-  if (magnitude > 400) return {0.0, ValueFault::overflow};
-  if (magnitude < -400) return {0.0, ValueFault::subnormal};
-  std::string text = fmt::format("{}e{}", digits, exponent);
+  std::array<char, 128> small{};
+  std::string large;
+  char* text = small.data();
+  const std::size_t room = mantissa.size() + 24;
+  if (room > small.size()) {
+    large.resize(room);
+    text = large.data();
+  }
+  std::copy(mantissa.begin(), mantissa.end(), text);
+  text[mantissa.size()] = 'e';
+  char* end = std::to_chars(text + mantissa.size() + 1, text + room, exponent).ptr;
   double x = 0.0;
-  auto [end, ec] = std::from_chars(text.data(), text.data() + text.size(), x, std::chars_format::scientific);
-  if (ec == std::errc::result_out_of_range) return {0.0, magnitude > 0 ? ValueFault::overflow : ValueFault::subnormal};
-  if (ec != std::errc() || end != text.data() + text.size()) return {0.0, ValueFault::not_a_number};
+  auto [stop, ec] = std::from_chars(text, end, x, std::chars_format::scientific);
+  if (ec == std::errc::result_out_of_range) {
+    // Overflow or underflow: the decimal exponent of the leading non-zero digit tells which.
+    const std::size_t point = std::min(mantissa.find('.'), mantissa.size());
+    const std::size_t lead = mantissa.find_first_not_of("0.");
+    const long long place = lead < point ? static_cast<long long>(point - lead) - 1
+                                         : -static_cast<long long>(lead - point);
+    return {0.0, exponent + place > 0 ? ValueFault::overflow : ValueFault::subnormal};
+  }
+  if (ec != std::errc() || stop != end) return {0.0, ValueFault::not_a_number};
   return {negative ? -x : x, ValueFault::none};
 }
 
