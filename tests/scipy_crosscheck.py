@@ -269,6 +269,47 @@ resolution 100 us
         1e-12, {"L1.i": "A", "L1.v": "V"})
 
 
+def case_prefixed_event_rows():
+    # Issue 12 item 5: CSV rows at events spelled with SI prefixes. A 24 V relay coil
+    # (R1 = 12 ohm, L1 = 60 mH) behind a contact with a 220 ohm freewheel resistor; the events
+    # are written `2.5 ms`, `12000 us`, `20 ms` and the resolution `20 µs`. Each event falls on a
+    # sample (k · 20e-6 is exactly the event's double), and that row must hold the value just
+    # after the event (format, "Samples"). Before the fix, `20 µs` was 20 × 1e-6, the rows fell a
+    # hair before each event and none stood at it; their @b was the value before the switching.
+    # Contact open (before 2.5 ms, and 12..20 ms): L·di/dt = -(R1 + Rf)·i, @b = -Rf·i.
+    # Contact closed (2.5..12 ms, from 20 ms): L·di/dt = V - R1·i, @b = V.
+    V, R1, Rf, L = 24.0, 12.0, 220.0, 60e-3
+    closed = {"L1.i": lambda t, i: i, "@b": lambda t, i: V}
+    opened = {"L1.i": lambda t, i: i, "@b": lambda t, i: -Rf * i}
+    case = Case("prefixed_event_rows", """
+V1: voltage-source a -> gnd, dc 24 V
+K1: switch a -> b, closes at 2.5 ms, opens at 12000 us, closes at 20ms
+R1: resistor b -> c, 12 ohm
+L1: inductor c -> gnd, 60 mH, initial 0 A
+Rf: resistor b -> gnd, 220 ohm
+watch L1.i, @b
+window 0 s .. 30 ms
+resolution 20 \u00b5s
+""", 0.0, [Segment(0.0, -(R1 + Rf) / L, lambda t: 0.0, opened),
+           Segment(2.5e-3, -R1 / L, lambda t: V / L, closed),
+           Segment(12e-3, -(R1 + Rf) / L, lambda t: 0.0, opened),
+           Segment(20e-3, -R1 / L, lambda t: V / L, closed)],
+        1e-12, {"L1.i": "A", "@b": "V"})
+    # The event instants as the doubles nearest the decimals (Python reads literals exactly so:
+    # source: Python language reference, "Floating point literals", from memory).
+    case.event_rows = [2.5e-3, 12e-3, 20e-3]
+    return case
+
+
+def require_event_rows(case, times):
+    """A case with `event_rows` must have a CSV row at each of those instants exactly; the
+    comparison then checks that row against the segment the event starts."""
+    for t in getattr(case, "event_rows", ()):
+        if not np.any(times == t):
+            nearest = float(times[int(np.argmin(np.abs(times - t)))])
+            raise RuntimeError(f"no CSV row at the event t = {t!r} s (nearest row: {nearest!r} s)")
+
+
 def case_list():
     return [
         case_rc_step(),
@@ -280,6 +321,7 @@ def case_list():
         case_reclose_rl(),
         case_held_at_zero_rl(),
         case_rl_steady_state(),
+        case_prefixed_event_rows(),
     ]
 
 
@@ -368,6 +410,7 @@ def main():
         for case in case_list():
             try:
                 names, times, closed = run_netfold(netfold, case, directory)
+                require_event_rows(case, times)
                 missing = [n for n in case.units if n not in names]
                 if missing:
                     raise RuntimeError(f"netfold's CSV lacks {', '.join(missing)} (columns: {', '.join(names)})")

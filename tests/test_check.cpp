@@ -392,3 +392,31 @@ TEST_CASE("the circuit library covers every element kind, waveform kind, claim k
   // At least one file is compared with a golden waveform under its own golden-tolerance.
   CHECK(golden);
 }
+
+// Issue 12, "Limits that do not hold": "`check` runs a file twice when named by two spellings".
+// cli.md (v2): "A file named twice (by two spellings of its path) runs once." Lexically equal
+// spellings (`d/../d/a.nf`) were merged already; an absolute and a relative path, or a folder
+// reached through a symbolic link, were not.
+TEST_CASE("issue 12 limits: a file named by two spellings is found once, under its first spelling", "[check]") {
+  TempDir dir;
+  write_file(dir.path() / "lib" / "a.nf", rc());
+  write_file(dir.path() / "lib" / "b.nf", rc());
+  fs::create_directory_symlink(dir.path() / "lib", dir.path() / "link");
+  const std::string d = dir.path().generic_string();
+  std::vector<fs::path> files =
+      find_netlists({d + "/lib/a.nf", d + "/link/a.nf", d + "/lib/../lib/a.nf", d + "/lib", d + "/link/"});
+  REQUIRE(files.size() == 2);
+  CHECK(files[0].generic_string() == d + "/lib/a.nf");
+  CHECK(files[1].generic_string() == d + "/lib/b.nf");
+  // A relative spelling of the same file, from the folder above it.
+  const fs::path here = fs::current_path();
+  fs::current_path(dir.path());
+  std::vector<fs::path> mixed = find_netlists({"lib/a.nf", d + "/lib/a.nf"});
+  fs::current_path(here);
+  REQUIRE(mixed.size() == 1);
+  CHECK(mixed[0].generic_string() == "lib/a.nf");
+  // And the run holds each file once.
+  CheckReport report = check_files(files, {});
+  CHECK(report.files.size() == 2);
+  CHECK(report.passed() == 2);
+}

@@ -138,10 +138,10 @@ TEST_CASE("a golden file of another shape fails with a message saying what diffe
   CHECK(times.message.find("the sample times differ") == 0);
   GoldenResult text = compare_golden("t,a\n0,1\n1,2\n", "t,a\n0,1\n1,two\n", 1e-6, "g.csv");
   CHECK_FALSE(text.passed);
-  CHECK(text.message.find("the golden file line 3: 'two' is not a number") == 0);
+  CHECK(text.message.find("g.csv:3:3: expected a number, found 'two'") == 0);
   GoldenResult empty = compare_golden("t,a\n0,1\n", "", 1e-6, "g.csv");
   CHECK_FALSE(empty.passed);
-  CHECK(empty.message.find("the golden file is empty") == 0);
+  CHECK(empty.message.find("g.csv:1:1: expected a header line, found an empty file") == 0);
   // Windows line ends in a golden file are not a difference.
   CHECK(compare_golden("t,a\n0,1\n1,2\n", "t,a\r\n0,1\r\n1,2\r\n", 1e-6, "g.csv").passed);
 }
@@ -185,4 +185,43 @@ TEST_CASE("update-golden rewrites the golden file atomically and then it matches
   REQUIRE(after);
   INFO(after->message);
   CHECK(after->passed);
+}
+
+// Issue 12 item 10: "Golden files holding `inf` always pass." With inf in a column, its peak is
+// inf, the allowance tolerance × peak is inf, and |fresh − golden| ≤ inf holds for every
+// fresh value. A golden file is a CSV of finite numbers; anything else is refused at its line
+// and column (docs/golden.md).
+TEST_CASE("issue 12 item 10: a golden file holding a non-finite value is refused at its line and column",
+          "[golden]") {
+  const std::string fresh = "t,a\n0,1\n1,2\n";
+  struct Bad {
+    std::string golden;
+    std::string message;
+  };
+  for (const Bad& bad : {Bad{"t,a\n0,1\n1,inf\n", "g.csv:3:3: expected a finite number, found 'inf'"},
+                         Bad{"t,a\n0,1\n1,-inf\n", "g.csv:3:3: expected a finite number, found '-inf'"},
+                         Bad{"t,a\n0,inf\n1,2\n", "g.csv:2:3: expected a finite number, found 'inf'"},
+                         Bad{"t,a\n0,1\n1, infinity\n", "g.csv:3:4: expected a finite number, found 'infinity'"},
+                         Bad{"t,a\n0,nan\n1,2\n", "g.csv:2:3: expected a finite number, found 'nan'"},
+                         Bad{"t,a\ninf,1\n1,2\n", "g.csv:2:1: expected a finite number, found 'inf'"},
+                         Bad{"t,a\n0,1\n1,1e999\n", "g.csv:3:3: expected a number double precision can carry, "
+                                                    "found '1e999'"}}) {
+    INFO(bad.golden);
+    GoldenResult r = compare_golden(fresh, bad.golden, 1e-6, "g.csv");
+    CHECK_FALSE(r.passed);
+    CHECK(r.message == bad.message + "; rewrite it with --update-golden");
+  }
+  // The same through a file beside its netlist, as `check` reads it: a golden file whose
+  // every value is inf passes no waveform.
+  TempDir dir;
+  const fs::path nf = dir.path() / "coil.nf";
+  write_file(nf, coil(18.0));
+  std::string golden = csv_of(coil(18.0));
+  std::string all_inf = golden.substr(0, golden.find('\n') + 1);
+  for (std::size_t row = 0; row < 1201; ++row) all_inf += fmt::format("{},inf,inf\n", row * 50e-6);
+  write_file(dir.path() / "coil.golden.csv", all_inf);
+  std::optional<GoldenResult> r = check_golden(solve(parse_netlist_file(nf)), nf, false);
+  REQUIRE(r);
+  CHECK_FALSE(r->passed);
+  CHECK(r->message.find((dir.path() / "coil.golden.csv").generic_string() + ":2:") == 0);
 }

@@ -3,6 +3,7 @@
 // own reading of a point the description leaves open, recorded in docs/netlist-format.md.
 #include <catch2/catch.hpp>
 
+#include <charconv>
 #include <cmath>
 #include <cstdio>
 #include <filesystem>
@@ -15,7 +16,10 @@
 #include <fmt/format.h>
 
 #include "netfold/parse.hpp"
+#include "netfold/report.hpp"
+#include "netfold/solve.hpp"
 #include "parse_helpers.hpp"
+#include "temp_dir.hpp"
 
 using namespace netfold;
 using netfold_test::parse_errors;
@@ -1062,7 +1066,8 @@ TEST_CASE("a sweep argument is TARGET=FROM..TO with optional spaces and step", "
     parse_sweep_argument(c, "R1.phase=0..1");
     FAIL("a resistor's phase was accepted");
   } catch (const InputError& e) {
-    CHECK(e.diagnostics().at(0).message.find("--sweep: 'R1.phase' sweeps the phase of an independent source") == 0);
+    CHECK(e.diagnostics().at(0).message.find(
+              "--sweep 'R1.phase=0..1': 'R1.phase' sweeps the phase of an independent source") == 0);
   }
   CHECK_THROWS_AS(parse_sweep_argument(c, "supply.phase 0..1"), InputError);
   CHECK_THROWS_AS(parse_sweep_argument(c, "supply.phase=1..0"), InputError);
@@ -1373,4 +1378,249 @@ TEST_CASE("a keyword after a bare number is not called a misspelt unit", "[parse
   REQUIRE(errors.size() == 1);
   CHECK(errors[0].message == "expected ',' or end of line, found 'rated'");
   REQUIRE_PARSE_ERROR(kBase + "R1: resistor a -> gnd, 'x'\n", 2, 24, "unexpected character \"'\"");
+}
+
+// =============================================================================================
+// Issue 12: values converted exactly, and limits that hold
+// =============================================================================================
+
+// Issue 12 item 5. Spec (v2) Values: "A value converts exactly: `5 us` is the double nearest to
+// 5·10⁻⁶, the same number as `5e-6 s`". The reference is the compiler's literal (rounded to the
+// nearest double; from memory).
+TEST_CASE("issue 12 item 5: a value is the same double however it is written", "[parse]") {
+  Circuit c = parses_ok(
+      "V1: voltage-source a -> gnd, dc 1 V + step 1 V at 5 us + step 1 V at 9 ms + cosine 2.3 kVrms 50 Hz\n"
+      "K1: switch a -> b, closes at 5 us, opens at 9 ms\n"
+      "K2: switch a -> b, closes at 5us, opens at 9ms\n"
+      "K3: switch a -> b, closes at 5 \xC2\xB5s, opens at 0.009 s\n"
+      "K4: switch a -> b, closes at 5\xCE\xBCs, opens at 9e-3\n"
+      "K5: switch a -> b, closes at 5000 ns, opens at .009\n"
+      "K6: switch a -> b, closes at 5e-6 s, opens at 9000 us\n"
+      "K7: switch a -> b, closes at 0.005 ms, opens at 9000000 ns\n"
+      "R1: resistor b -> gnd, 4.7 k\xCE\xA9\n"
+      "R2: resistor b -> gnd, 4.7kohm\n"
+      "R3: resistor b -> gnd, 0.0047 M\xE2\x84\xA6\n"
+      "C1: capacitor b -> gnd, 470 nF\n"
+      "window 9 ms .. 30 ms\n"
+      "resolution 100 us\n"
+      "expect @a at 9 ms = 1 V \xC2\xB1 1 mV\n"
+      "golden-tolerance 0.001 %\n");
+  // Before: 5 × 1e-6 = 4.9999999999999996e-06 and 9 × 1e-3 = 0.009000000000000001.
+  for (std::string_view k : {"K1", "K2", "K3", "K4", "K5", "K6", "K7"}) {
+    INFO(std::string(k));
+    CHECK(element(c, k).events.at(0).time == 5e-6);
+    CHECK(element(c, k).events.at(1).time == 0.009);
+  }
+  CHECK(element(c, "V1").waveform.steps.at(0).time == 5e-6);
+  CHECK(element(c, "V1").waveform.steps.at(1).time == 0.009);
+  // source: definition of the rms value of a sinusoid, peak = rms × √2 (from memory); the rms
+  // value is converted exactly first (2.3 × 1e3 would be 2299.9999999999995)
+  CHECK(element(c, "V1").waveform.sinusoids.at(0).amplitude == 2300.0 * std::numbers::sqrt2);
+  CHECK(element(c, "R1").value == 4700.0);
+  CHECK(element(c, "R2").value == 4700.0);
+  CHECK(element(c, "R3").value == 4700.0);
+  CHECK(element(c, "C1").value == 470e-9);
+  CHECK(c.window()->from == 0.009);
+  CHECK(c.window()->to == 0.030);
+  CHECK(*c.resolution() == 100e-6);
+  CHECK(c.claims().at(0).time == 0.009);
+  CHECK(*c.golden_tolerance() == 1e-5);  // 0.001 % = 1e-5, not 0.001 / 100
+  // A sweep argument on the command line converts alike.
+  Sweep s = parse_sweep_argument(c, "K1.closes=5 us..8 ms step 1 \xC2\xB5s");
+  CHECK(s.from == 5e-6);
+  CHECK(s.to == 0.008);
+  CHECK(*s.step == 1e-6);
+}
+
+namespace {
+
+// An RC charged through a contact that opens at 50 ns, spelt with prefixes or in plain seconds.
+// With the contact open the resistor carries no current: just after the event R1.i is 0.
+std::string contact_rc(bool prefixed) {
+  return prefixed ? "V1: voltage-source a -> gnd, dc 10 V\n"
+                    "K1: switch a -> b, closes at 0 s, opens at 50 ns\n"
+                    "R1: resistor b -> c, 100 ohm\n"
+                    "C1: capacitor c -> gnd, 100 pF, initial 0 V\n"
+                    "watch C1.v, R1.i\n"
+                    "window 0 s .. 100 ns\n"
+                    "resolution 10 ns\n"
+                  : "V1: voltage-source a -> gnd, dc 10 V\n"
+                    "K1: switch a -> b, closes at 0 s, opens at 5e-8 s\n"
+                    "R1: resistor b -> c, 100 ohm\n"
+                    "C1: capacitor c -> gnd, 1e-10 F, initial 0 V\n"
+                    "watch C1.v, R1.i\n"
+                    "window 0 s .. 1e-7 s\n"
+                    "resolution 1e-8 s\n";
+}
+
+std::vector<std::vector<double>> csv_rows(const std::string& csv) {
+  std::vector<std::vector<double>> rows;
+  std::istringstream in(csv);
+  std::string line;
+  std::getline(in, line);  // header
+  while (std::getline(in, line)) {
+    std::vector<double> row;
+    std::size_t start = 0;
+    for (;;) {
+      std::size_t comma = line.find(',', start);
+      std::string_view field(line.data() + start, (comma == std::string::npos ? line.size() : comma) - start);
+      double x = 0;
+      std::from_chars(field.data(), field.data() + field.size(), x);
+      row.push_back(x);
+      if (comma == std::string::npos) break;
+      start = comma + 1;
+    }
+    rows.push_back(row);
+  }
+  return rows;
+}
+
+}  // namespace
+
+// Issue 12 item 5, and the format's "Samples" rule: "a row at an event time holds the value just
+// after the event". Before: `50 ns` was 5.0000000000000004e-08 while the row stood at 5e-08, so
+// that row held the current before the contact opened (0.67 mA), and the CSV differed from the
+// one of the same circuit spelt in seconds.
+TEST_CASE("issue 12 item 5: a CSV row at an event spelt with a prefix holds the value just after it", "[parse]") {
+  const std::string prefixed = waveform_csv(solve(parses_ok(contact_rc(true))));
+  const std::string plain = waveform_csv(solve(parses_ok(contact_rc(false))));
+  CHECK(prefixed == plain);
+  auto rows = csv_rows(prefixed);
+  auto at_event = std::find_if(rows.begin(), rows.end(), [](const auto& r) { return r.at(0) == 5e-8; });
+  REQUIRE(at_event != rows.end());
+  REQUIRE(at_event != rows.begin());
+  // source: hand derivation — closed, i = 10 V / 100 ohm · e^(−t/τ), τ = 100 ohm · 100 pF = 10 ns:
+  // 100 mA · e^-4 = 1.83 mA at 40 ns (and 0.674 mA just before 50 ns); open, no path: 0 A.
+  const auto& before = *std::prev(at_event);
+  CHECK(before.at(2) == Approx(0.1 * std::exp(-4.0)).epsilon(1e-9));
+  CHECK(std::fabs(at_event->at(2)) <= 1e-15);
+  // The capacitor voltage is continuous across the event: 10 V · (1 − e^-5).
+  CHECK(at_event->at(1) == Approx(10.0 * (1.0 - std::exp(-5.0))).epsilon(1e-9));
+}
+
+// Issue 12, "Limits that do not hold": an event at 1e300 s and a window from 1e15 s were accepted.
+// (decision) Every time on the time axis lies within kMaxTime = 1e9 s (about 30 years, the
+// limit of the default window) of t = 0, refused at the value.
+TEST_CASE("issue 12 limits: a time beyond 1e9 s is refused at the value, with the reason", "[parse]") {
+  REQUIRE_PARSE_ERROR(kBase + "K1: switch a -> b, closes at 1e300 s\nR1: resistor b -> gnd, 1k\n", 2, 30,
+                      "'1e300 s' is beyond 1e9 s (about 30 years), the longest time netfold computes with");
+  REQUIRE_PARSE_ERROR(kBase + "window 1e15 s .. 2e15 s\n", 2, 8, "'1e15 s' is beyond 1e9 s");
+  REQUIRE_PARSE_ERROR(kBase + "window 1e15 s .. 2e15 s\n", 2, 8, "instants less than 125 ms apart");
+  REQUIRE_PARSE_ERROR(kBase + "window 0 .. 1.1 Gs\n", 2, 13, "'1.1 Gs' is beyond 1e9 s");
+  REQUIRE_PARSE_ERROR(kBase + "V1: voltage-source b -> gnd, step 1 V at -2e9 s\n", 2, 42, "'-2e9 s' is beyond 1e9 s");
+  REQUIRE_PARSE_ERROR(kBase + "resolution 2e9\n", 2, 12, "'2e9' is beyond 1e9 s");
+  REQUIRE_PARSE_ERROR(kBase + "expect @a at 1e10 s < 1 V\n", 2, 14, "'1e10 s' is beyond 1e9 s");
+  REQUIRE_PARSE_ERROR(kBase + "K1: switch a -> b, closes at 1 ms\nsweep K1.closes 0 .. 2e9 s\n", 3, 22,
+                      "'2e9 s' is beyond 1e9 s");
+  auto errors = parse_errors(kBase + "window 1e15 s .. 2e15 s\n");
+  CHECK(errors.size() == 1);  // one message for the window
+  // At the limit, times are accepted.
+  Circuit c = parses_ok(kBase + "K1: switch a -> b, closes at 1e9 s\nR1: resistor b -> gnd, 1k\nwindow 0 .. 1 Gs\n");
+  CHECK(c.window()->to == 1e9);
+}
+
+// Issue 12, "Limits that do not hold": a fine `step` was cut at 100,001 grid points, silently
+// leaving the end of the range unswept.
+TEST_CASE("issue 12 limits: a sweep step finer than the grid limit is refused with the finest allowed", "[parse]") {
+  const std::string supply = "V1: voltage-source a -> gnd, cosine 1 V 50 Hz\nR1: resistor a -> gnd, 1k\n"
+                             "C1: capacitor a -> b, 1 uF\nR2: resistor b -> gnd, 1k\n";
+  // 360° / 0.001° = 360,000 intervals; at most 100,000: a step of 360° / 1e5 = 0.0036°.
+  REQUIRE_PARSE_ERROR(supply + "sweep V1.phase 0 .. 360 step 0.001\n", 5, 30,
+                      "a step of '0.001' cuts the range of 'V1.phase' into 3.6e+05 intervals, more than the 100000 a "
+                      "sweep computes; give a step of at least 0.0036\xC2\xB0");
+  REQUIRE_PARSE_ERROR(supply + "sweep C1.initial -1 V .. 1 V step 1 uV\n", 5, 35, "give a step of at least 20 \xC2\xB5V");
+  // A range wider than double precision carries has no grid at all.
+  REQUIRE_PARSE_ERROR(supply + "sweep C1.initial -1e308 V .. 1e308 V\n", 5, 30,
+                      "the range '-1e308 V' .. '1e308 V' is wider than double precision carries");
+  // Exactly the limit is accepted.
+  Circuit c = parses_ok(supply + "sweep V1.phase 0 .. 360 step 0.0036\n");
+  CHECK(c.sweeps().at(0).step.has_value());
+  try {
+    parse_sweep_argument(c, "V1.phase=0..360 step 0.001");
+    FAIL("the step was accepted");
+  } catch (const InputError& e) {
+    CHECK_THAT(e.diagnostics().at(0).format(),
+               Catch::StartsWith("netfold: error: --sweep 'V1.phase=0..360 step 0.001': a step of '0.001'"));
+  }
+}
+
+// Issue 12 (messages): "a `--sweep` error at `FILE:1:1` (name the option instead)". A closing
+// time swept past the switch's next event was refused by the worst-case search at the sweep's
+// position, which an argument does not have: `valve.nf:1:1: error: ...`.
+TEST_CASE("issue 12 messages: a --sweep argument at fault is named, not placed at FILE:1:1", "[parse]") {
+  Circuit c = parses_ok("V1: voltage-source a -> gnd, dc 5 V\nK1: switch a -> b, closes at 1 ms, opens at 5 ms, "
+                        "closes at 9 ms\nR1: resistor b -> c, 1 kohm\nC1: capacitor c -> gnd, 1 uF\n");
+  try {
+    parse_sweep_argument(c, "K1.closes=0..8ms");
+    FAIL("the sweep was accepted");
+  } catch (const InputError& e) {
+    REQUIRE(e.diagnostics().size() == 1);
+    CHECK(e.diagnostics()[0].path.empty());
+    CHECK(e.diagnostics()[0].format() ==
+          "netfold: error: --sweep 'K1.closes=0..8ms': 'K1.closes' moves K1's first 'closes' up to 8ms, but it must "
+          "stay before the switch's next event, 'opens at 5 ms' (line 2); narrow the range");
+  }
+  CHECK(parse_sweep_argument(c, "K1.closes=0..4ms").to == 0.004);
+  // A switch whose first 'closes' follows an 'opens' keeps it after that event.
+  Circuit d = parses_ok("V1: voltage-source a -> gnd, dc 5 V\nK1: switch a -> b, opens at 2 ms, closes at 4 ms\n"
+                        "R1: resistor b -> c, 1 kohm\nC1: capacitor c -> gnd, 1 uF\n");
+  CHECK_THROWS_WITH(parse_sweep_argument(d, "K1.closes=1ms..3ms"),
+                    Catch::Contains("must stay after the switch's previous event, 'opens at 2 ms'"));
+  CHECK(parse_sweep_argument(d, "K1.closes=3ms..5ms").from == 0.003);
+}
+
+// Issue 12 (messages): "the response grows, shorten the window" for a subnormal resistance.
+// (decision) A non-zero value below the smallest normal double (2.2e-308) is refused at the value.
+TEST_CASE("issue 12 messages: a subnormal value is refused at the value, in circuit terms", "[parse]") {
+  REQUIRE_PARSE_ERROR("V1: voltage-source a -> gnd, dc 10 V\nR1: resistor a -> b, 1e-310 ohm\n"
+                      "C1: capacitor b -> gnd, 1 uF\n",
+                      2, 22,
+                      "'1e-310 ohm' for a resistor is too small to compute with: below 2.2e-308 \xCE\xA9 double "
+                      "precision loses its digits; give the real value (a connection of no resistance is a wire: "
+                      "join the two nodes)");
+  REQUIRE_PARSE_ERROR(kBase + "C1: capacitor a -> gnd, 1e-295 fF\n", 2, 25, "'1e-295 fF' for a capacitor is too small");
+  REQUIRE_PARSE_ERROR(kBase + "V1: voltage-source b -> gnd, dc 1e-320 V\n", 2, 33, "too small to compute with");
+  // Zero stays zero where zero is allowed (a contact's 'on' resistance).
+  Circuit c = parses_ok(kBase + "K1: switch a -> b, closes at 0 s, on 0 ohm\nR1: resistor b -> gnd, 1k\n");
+  CHECK(element(c, "K1").r_on == 0.0);
+}
+
+// Issue 12 item 10, the parse side: with a tolerance of 100 % of each column's peak, a golden
+// file of zeros passes every waveform (|fresh − 0| ≤ 1 × peak of fresh).
+TEST_CASE("issue 12 item 10: a golden tolerance of 100 % or more is refused", "[parse]") {
+  REQUIRE_PARSE_ERROR(kBase + "golden-tolerance 100 %\n", 2, 18,
+                      "'golden-tolerance' must be below 1 (100 %), found '100 %'");
+  REQUIRE_PARSE_ERROR(kBase + "golden-tolerance 2\n", 2, 18, "must be below 1 (100 %)");
+  CHECK(*parses_ok(kBase + "golden-tolerance 99 %\n").golden_tolerance() == 0.99);
+}
+
+// Issue 12, "Limits that do not hold": `netfold solve /dev/zero` ran out of memory (exit 3).
+// (decision) A file over kMaxFileBytes (256 MiB) is refused before it is read; a NUL byte stops
+// the reading at the block that holds it.
+TEST_CASE("issue 12 limits: a file over 256 MiB is refused unread, and a device of NUL bytes at once", "[parse]") {
+  netfold_test::TempDir dir("parse");
+  const std::filesystem::path big = dir.path() / "big.nf";
+  {
+    std::ofstream out(big, std::ios::binary);
+    out << "R1: resistor a -> gnd, 1k\n";
+  }
+  // A sparse file: no disk space and no memory are spent on it.
+  std::filesystem::resize_file(big, kMaxFileBytes + 1);
+  try {
+    parse_netlist_file(big);
+    FAIL("the file was read");
+  } catch (const InputError& e) {
+    CHECK(e.exit_code() == ExitCode::bad_input);
+    CHECK(e.diagnostics().at(0).path == big.string());
+    CHECK_THAT(e.diagnostics().at(0).message, Catch::StartsWith("the file is longer than 256 MiB"));
+  }
+  if (std::filesystem::exists("/dev/zero")) {
+    try {
+      parse_netlist_file("/dev/zero");
+      FAIL("/dev/zero was read");
+    } catch (const InputError& e) {
+      CHECK(e.diagnostics().at(0).format().rfind("/dev/zero:1:1: error: the file is not text: it holds a NUL byte", 0) ==
+            0);
+    }
+  }
 }

@@ -78,7 +78,9 @@ struct Shard {
 Shard parse_shard_argument(std::string_view text);
 
 /// The `.nf` files under `paths` (files are taken as given, directories searched
-/// recursively), each once, sorted by their generic path text. Nothing is skipped: an error
+/// recursively), each once, sorted by their generic path text. A file named twice (by two
+/// spellings, a symbolic link, or a folder and a file in it) is listed once, as first spelt;
+/// files are told apart by their canonical path. Nothing is skipped: an error
 /// gallery is checked too (see the file comment). Throws InputError (exit 2) for a path that
 /// does not exist or a directory that holds no `.nf` file, since a CI job that checks
 /// nothing should not pass.

@@ -326,29 +326,51 @@ Shard parse_shard_argument(std::string_view text) {
 
 std::vector<std::filesystem::path> find_netlists(const std::vector<std::string>& paths) {
   namespace fs = std::filesystem;
-  std::set<std::string> found;
+  // A file is run once however it is named (`a/../a/x.nf`, an absolute path, a symbolic link,
+  // a directory and a file in it): files are told apart by their canonical path, and the first
+  // spelling met is the one reports show.
+  std::set<std::string> seen;   // canonical paths
+  std::set<std::string> found;  // spellings; sorted by their text, byte by byte: the same order on every machine
+  auto add = [&](const fs::path& spelled) {
+    std::error_code ec;
+    const fs::path canonical = fs::canonical(spelled, ec);
+    if (ec) {
+      found.insert(spelled.lexically_normal().generic_string());
+      return;
+    }
+    if (!seen.insert(canonical.generic_string()).second) return;
+    // The lexical form drops `x/..`, which names another folder when x is a symbolic link.
+    const fs::path normal = spelled.lexically_normal();
+    std::error_code same_ec;
+    const bool same = fs::canonical(normal, same_ec) == canonical && !same_ec;
+    found.insert(same ? normal.generic_string() : spelled.generic_string());
+  };
   for (const std::string& given : paths) {
     fs::path p(given);
     std::error_code ec;
     fs::file_status st = fs::status(p, ec);
     if (ec || !fs::exists(st)) throw argument_error("check", fmt::format("'{}' does not exist", given));
     if (!fs::is_directory(st)) {
-      found.insert(p.lexically_normal().generic_string());
+      add(p);
       continue;
     }
-    std::size_t here = 0;
+    // Sorted first, so that which of two spellings inside one folder is kept does not depend
+    // on the order the file system lists them in.
+    std::vector<fs::path> here;
     try {
       for (const auto& entry : fs::recursive_directory_iterator(p)) {
         if (entry.path().extension() != ".nf" || !entry.is_regular_file()) continue;
-        found.insert(entry.path().lexically_normal().generic_string());
-        ++here;
+        here.push_back(entry.path());
       }
     } catch (const fs::filesystem_error& e) {
       throw argument_error("check", fmt::format("cannot search '{}': {}", given, e.code().message()));
     }
-    if (here == 0) throw argument_error("check", fmt::format("no .nf file under '{}'", given));
+    if (here.empty()) throw argument_error("check", fmt::format("no .nf file under '{}'", given));
+    std::sort(here.begin(), here.end(), [](const fs::path& a, const fs::path& b) {
+      return a.lexically_normal().generic_string() < b.lexically_normal().generic_string();
+    });
+    for (const fs::path& f : here) add(f);
   }
-  // std::set holds them sorted by their text, byte by byte: the same order on every machine.
   return {found.begin(), found.end()};
 }
 

@@ -50,20 +50,31 @@ std::vector<std::string_view> split_fields(std::string_view line) {
   return fields;
 }
 
-// Reads `text`; on a malformed line returns nothing and says which, in `error`.
-std::optional<Table> read_table(std::string_view text, const std::string& what, std::string& error) {
+// Column (in characters, from 1) of byte `at` of `line`.
+std::size_t column_of(std::string_view line, std::size_t at) {
+  std::size_t col = 1;
+  for (std::size_t k = 0; k < at && k < line.size(); ++k)
+    if ((static_cast<unsigned char>(line[k]) & 0xC0) != 0x80) ++col;
+  return col;
+}
+
+// Reads `text`; on a malformed line returns nothing and says which, in `error`, as
+// `WHERE:LINE:COL: what was expected, what was found`. A value must be a finite number: with
+// `inf` in a golden file, the allowance (tolerance × peak) would be infinite and every
+// waveform would pass.
+std::optional<Table> read_table(std::string_view text, const std::string& where, std::string& error) {
   Table t;
   std::vector<std::string_view> lines = split_lines(text);
   if (lines.empty()) {
-    error = fmt::format("{} is empty", what);
+    error = fmt::format("{}:1:1: expected a header line, found an empty file", where);
     return std::nullopt;
   }
   for (auto f : split_fields(lines[0])) t.header.emplace_back(f);
   for (std::size_t k = 1; k < lines.size(); ++k) {
     std::vector<std::string_view> fields = split_fields(lines[k]);
     if (fields.size() != t.header.size()) {
-      error = fmt::format("{} line {} has {} fields, but its header has {}", what, k + 1, fields.size(),
-                          t.header.size());
+      error = fmt::format("{}:{}:1: expected {} fields as in the header, found {}", where, k + 1, t.header.size(),
+                          fields.size());
       return std::nullopt;
     }
     std::vector<double> row;
@@ -73,8 +84,17 @@ std::optional<Table> read_table(std::string_view text, const std::string& what, 
       while (!f.empty() && f.back() == ' ') f.remove_suffix(1);
       double v = 0.0;
       auto [end, ec] = std::from_chars(f.data(), f.data() + f.size(), v);
+      const std::size_t col = column_of(lines[k], static_cast<std::size_t>(f.data() - lines[k].data()));
+      if (ec == std::errc::result_out_of_range) {
+        error = fmt::format("{}:{}:{}: expected a number double precision can carry, found '{}'", where, k + 1, col, f);
+        return std::nullopt;
+      }
       if (ec != std::errc() || end != f.data() + f.size()) {
-        error = fmt::format("{} line {}: '{}' is not a number", what, k + 1, f);
+        error = fmt::format("{}:{}:{}: expected a number, found '{}'", where, k + 1, col, f);
+        return std::nullopt;
+      }
+      if (!std::isfinite(v)) {
+        error = fmt::format("{}:{}:{}: expected a finite number, found '{}'", where, k + 1, col, f);
         return std::nullopt;
       }
       row.push_back(v);
@@ -112,7 +132,7 @@ GoldenResult compare_golden(std::string_view fresh_csv, std::string_view golden_
   GoldenResult r;
   r.golden_path = golden_path;
   std::string error;
-  std::optional<Table> golden = read_table(golden_csv, "the golden file", error);
+  std::optional<Table> golden = read_table(golden_csv, golden_path, error);
   if (!golden) {
     r.message = error + "; rewrite it with --update-golden";
     return r;
@@ -140,11 +160,6 @@ GoldenResult compare_golden(std::string_view fresh_csv, std::string_view golden_
     double peak = 0.0;
     for (std::size_t k = 0; k < n_rows; ++k) {
       double g = golden->rows[k][c], f = fresh->rows[k][c];
-      if (std::isnan(f) || std::isnan(g)) {
-        r.message = fmt::format("column '{}' row {} is not a number ({})", golden->header[c], k + 2,
-                                std::isnan(f) ? "now" : "in the golden file");
-        return r;
-      }
       peak = std::max({peak, std::fabs(g), std::fabs(f)});
     }
     const double allowed = rel_tol * peak;

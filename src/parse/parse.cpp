@@ -90,9 +90,8 @@ bool is_word_byte(char c) {
 // given a dimension only where its place is known (to_si), which for `sweep C.initial` is
 // after the whole file has been read.
 struct RawValue {
-  double number = 0.0;          // the number as written, sign included
-  UnitSuffix unit;              // multiplier 1 and no dimension for a bare number
-  std::string_view number_text;
+  UnitSuffix unit;              // no prefix and no dimension for a bare number
+  std::string_view number_text; // the number as written, sign included
   std::string_view unit_text;   // "" for a bare number
   bool spaced = false;          // the unit was a separate word: `470 nF`
   SourceLoc loc;                // of the number
@@ -105,7 +104,8 @@ struct RawValue {
 };
 
 // The value in SI units for a place that needs `want`; `place` names that place in messages
-// ("a resistor", "'rated' on a resistor"). Only sinusoid amplitudes may be rms.
+// ("a resistor", "'rated' on a resistor"). Only sinusoid amplitudes may be rms. Every value of
+// a file is converted here, by convert_value (exactly; see units.hpp).
 double to_si(const RawValue& v, Dimension want, const Text& place, bool rms_allowed = false) {
   Dimension dim = v.unit.dimension.value_or(want);
   if (dim != want) {
@@ -116,13 +116,34 @@ double to_si(const RawValue& v, Dimension want, const Text& place, bool rms_allo
     fail(v.loc, fmt::format("'{}' is an rms value; rms applies only to the amplitude of a cosine or sine, not to {}",
                             v.quote(), place.str()));
   }
-  double scale = v.unit.multiplier;
-  if (want == Dimension::angle && !v.unit.dimension) scale *= kDegree;  // a bare angle is in degrees
-  double x = v.number * scale;
-  // source: definition of the rms value of a sinusoid, peak = rms × √2 (from memory)
-  if (v.unit.rms) x *= std::numbers::sqrt2;
-  if (!std::isfinite(x)) fail(v.loc, fmt::format("'{}' is out of range", v.quote()));
-  return x;
+  Converted c = convert_value(v.number_text, v.unit, want);
+  switch (c.fault) {
+    case ValueFault::none: break;
+    case ValueFault::not_a_number: fail(v.loc, fmt::format("'{}' is not a number", v.quote()));
+    case ValueFault::overflow: fail(v.loc, fmt::format("'{}' is out of range", v.quote()));
+    case ValueFault::subnormal:
+      // Such a value passes the checks for zero and then breaks the circuit's arithmetic (1/R
+      // overflows), so that the failure would surface far from its cause.
+      fail(v.loc, fmt::format("'{}' for {} is too small to compute with: below {:.2g} {} double precision loses its "
+                              "digits; give the real value{}",
+                              v.quote(), place.str(), std::numeric_limits<double>::min(), dimension_symbol(want),
+                              want == Dimension::resistance ? " (a connection of no resistance is a wire: join the "
+                                                              "two nodes)"
+                                                            : ""));
+  }
+  return c.value;
+}
+
+// A time on the time axis (an event, a window bound, a step, a resolution, a claim's instant,
+// a closing-time sweep) lies within kMaxTime of t = 0. The message when it does not, or "".
+std::string time_limit_fault(const RawValue& v, double t) {
+  if (std::fabs(t) <= kMaxTime) return {};
+  const double mag = std::fabs(t);
+  const double gap = std::nextafter(mag, std::numeric_limits<double>::infinity()) - mag;
+  static_assert(kMaxTime == 1e9, "the message says 1e9 s");
+  return fmt::format("'{}' is beyond 1e9 s (about 30 years), the longest time netfold computes with: there double "
+                     "precision cannot tell apart instants less than {} apart; check the value",
+                     v.quote(), format_si(gap, "s"));
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -309,6 +330,51 @@ Observable resolve_observable(const Scope& scope, const PendingObservable& p) {
   return o;
 }
 
+// A value of a sweep in the user's terms: angles in degrees, as they are written.
+std::string sweep_value_text(double x, Dimension dim) {
+  if (dim == Dimension::angle) return format_si(x / kDegree, "°");
+  return format_si(x, dimension_symbol(dim));
+}
+
+// The grid of a sweep with a step has ceil((TO − FROM) / S) intervals (worst.cpp's sweep_grid);
+// more than kMaxSweepIntervals would be cut short and leave the end of the range unswept.
+void check_sweep_step(const Sweep& s, const PendingSweep& p, Dimension dim) {
+  const double range = s.to - s.from;
+  const double intervals = std::ceil(range / *s.step - 1e-9);
+  if (intervals <= kMaxSweepIntervals) return;
+  // The finest step allowed, rounded up to three digits so that the step suggested is accepted.
+  double finest = range / kMaxSweepIntervals;
+  if (dim == Dimension::angle) finest /= kDegree;
+  const double digit = std::pow(10.0, std::floor(std::log10(finest)) - 2);
+  finest = std::ceil(finest / digit - 1e-9) * digit;
+  if (dim == Dimension::angle) finest *= kDegree;
+  fail(p.step->loc, fmt::format("a step of '{}' cuts the range of '{}' into {:.3g} intervals, more than the {:g} a "
+                                "sweep computes; give a step of at least {}",
+                                p.step->quote(), s.text, intervals, kMaxSweepIntervals,
+                                sweep_value_text(finest, dim)));
+}
+
+// A closing-time sweep moves the switch's first `closes` event; it must stay after the event
+// before it and before the event after it, or the events would change order (the rule of
+// worst.cpp's validate_sweep, in the user's words).
+void check_closes_slot(const Element& e, const Sweep& s, const PendingSweep& p) {
+  auto first = std::find_if(e.events.begin(), e.events.end(), [](const SwitchEvent& ev) { return ev.closes; });
+  if (first != e.events.begin()) {
+    const SwitchEvent& before = *std::prev(first);
+    if (s.from <= before.time)
+      fail(p.from.loc, fmt::format("'{}' moves {}'s first 'closes' from {}, but it must stay after the switch's "
+                                   "previous event, 'opens at {}' (line {}); narrow the range",
+                                   s.text, e.name, p.from.quote(), format_si(before.time, "s"), before.loc.line));
+  }
+  if (std::next(first) != e.events.end()) {
+    const SwitchEvent& after = *std::next(first);
+    if (s.to >= after.time)
+      fail(p.to.loc, fmt::format("'{}' moves {}'s first 'closes' up to {}, but it must stay before the switch's next "
+                                 "event, 'opens at {}' (line {}); narrow the range",
+                                 s.text, e.name, p.to.quote(), format_si(after.time, "s"), after.loc.line));
+  }
+}
+
 Sweep resolve_sweep(const Scope& scope, const PendingSweep& p) {
   Sweep s;
   s.loc = p.loc;
@@ -347,12 +413,20 @@ Sweep resolve_sweep(const Scope& scope, const PendingSweep& p) {
   s.from = to_si(p.from, dim, place);
   s.to = to_si(p.to, dim, place);
   if (p.step) s.step = to_si(*p.step, dim, place);
-  if (p.member == SweepMember::closes && s.from < 0)
-    fail(p.from.loc, fmt::format("a switch event cannot happen before t = 0, found '{}'", p.from.quote()));
+  if (p.member == SweepMember::closes) {
+    for (const RawValue* v : {&p.from, &p.to})
+      if (std::string fault = time_limit_fault(*v, v == &p.from ? s.from : s.to); !fault.empty()) fail(v->loc, fault);
+    if (s.from < 0)
+      fail(p.from.loc, fmt::format("a switch event cannot happen before t = 0, found '{}'", p.from.quote()));
+  }
   if (!(s.from < s.to))
     fail(p.to.loc, fmt::format("a sweep range must rise: '{}' is not above '{}'", p.to.quote(), p.from.quote()));
+  if (!std::isfinite(s.to - s.from))
+    fail(p.to.loc, fmt::format("the range '{}' .. '{}' is wider than double precision carries; narrow it",
+                               p.from.quote(), p.to.quote()));
   if (s.step && !(*s.step > 0))
     fail(p.step->loc, fmt::format("a sweep step must be positive, found '{}'", p.step->quote()));
+  if (s.step) check_sweep_step(s, p, dim);
   return s;
 }
 
@@ -421,19 +495,6 @@ class Reader {
     return take();
   }
 
-  double number_of(const Token& t) const {
-    std::string_view s = t.number_part();
-    bool negative = s.front() == '-';
-    if (s.front() == '-' || s.front() == '+') s.remove_prefix(1);
-    double x = 0.0;
-    // from_chars: exact and independent of the locale.
-    auto [end, ec] = std::from_chars(s.data(), s.data() + s.size(), x, std::chars_format::general);
-    if (ec == std::errc::result_out_of_range) fail(t.loc, fmt::format("'{}' is out of range", shorten(t.text)));
-    if (ec != std::errc() || end != s.data() + s.size())
-      fail(t.loc, fmt::format("'{}' is not a number", shorten(t.text)));
-    return negative ? -x : x;
-  }
-
   // `NUMBER [PREFIX][UNIT]`, glued or after a space.
   RawValue take_value(const Text& what) {
     const Token& t = peek();
@@ -442,7 +503,6 @@ class Reader {
     RawValue v;
     v.loc = t.loc;
     v.number_text = t.number_part();
-    v.number = number_of(t);
     std::string_view suffix = t.suffix();
     if (!suffix.empty()) {
       auto unit = parse_unit_suffix(suffix);
@@ -876,7 +936,9 @@ Waveform FileParser::parse_waveform(const KindInfo& info) {
       s.level = to_si(take_value(dimension_noun(level)), level, Text("'step' on ", info.noun));
       if (!at_word("at")) fail_expected("'at TIME' after the level of 'step'");
       take();
-      s.time = to_si(take_value("a time"), Dimension::time, "'at'");
+      RawValue at = take_value("a time");
+      s.time = to_si(at, Dimension::time, "'at'");
+      if (std::string fault = time_limit_fault(at, s.time); !fault.empty()) report(at.loc, std::move(fault));
       w.steps.push_back(s);
     } else if (t.kind == TokenKind::number) {
       RawValue v = take_value("");
@@ -943,7 +1005,9 @@ void FileParser::parse_attributes(Element& e, const KindInfo& info, std::string_
         RawValue v = take_value("a time");
         SwitchEvent ev{to_si(v, Dimension::time, Text("'", keyword.text, " at'")), *attr == Attr::closes,
                        keyword.loc};
-        if (ev.time < 0) {
+        if (std::string fault = time_limit_fault(v, ev.time); !fault.empty()) {
+          report(v.loc, std::move(fault));
+        } else if (ev.time < 0) {
           report(v.loc, fmt::format("a switch event cannot happen before t = 0, found '{}'", v.quote()));
         } else if (!e.events.empty()) {
           const SwitchEvent& prev = e.events.back();
@@ -1041,9 +1105,17 @@ void FileParser::parse_window(const Token& keyword) {
   RawValue to = take_value("the end of the window (a time)");
   expect_end();
   Window w{to_si(from, Dimension::time, "'window'"), to_si(to, Dimension::time, "'window'"), keyword.loc};
-  if (w.from < 0) report(from.loc, fmt::format("the window starts at t = 0 or later, found '{}'", from.quote()));
-  if (!(w.from < w.to))
-    report(to.loc, fmt::format("the window must end after it starts: '{}' is not after '{}'", to.quote(), from.quote()));
+  // One message per window: a start beyond the limit makes the end's limit and order moot.
+  if (std::string fault = time_limit_fault(from, w.from); !fault.empty()) {
+    report(from.loc, std::move(fault));
+  } else if (std::string end_fault = time_limit_fault(to, w.to); !end_fault.empty()) {
+    report(to.loc, std::move(end_fault));
+  } else {
+    if (w.from < 0) report(from.loc, fmt::format("the window starts at t = 0 or later, found '{}'", from.quote()));
+    if (!(w.from < w.to))
+      report(to.loc,
+             fmt::format("the window must end after it starts: '{}' is not after '{}'", to.quote(), from.quote()));
+  }
   builder_.set_window(w);
   window_line_ = keyword.loc.line;
 }
@@ -1054,6 +1126,7 @@ void FileParser::parse_resolution(const Token& keyword) {
   expect_end();
   double dt = to_si(v, Dimension::time, "'resolution'");
   if (!(dt > 0)) report(v.loc, fmt::format("'resolution' needs a positive time step, found '{}'", v.quote()));
+  if (std::string fault = time_limit_fault(v, dt); !fault.empty()) report(v.loc, std::move(fault));
   builder_.set_resolution(dt, keyword.loc);
   resolution_line_ = keyword.loc.line;
 }
@@ -1073,7 +1146,11 @@ void FileParser::parse_golden_tolerance(const Token& keyword) {
   expect_end();
   double rel = 0.0;
   if (v.unit.dimension == Dimension::percent) {
-    rel = to_si(v, Dimension::percent, "'golden-tolerance'") / 100.0;
+    // A percentage is its number × 10⁻², converted exactly like a prefix: `0.001 %` is 1e-5.
+    RawValue fraction = v;
+    fraction.unit.exponent -= 2;
+    fraction.unit.dimension.reset();
+    rel = to_si(fraction, Dimension::ratio, "'golden-tolerance'");
   } else if (v.unit.dimension) {
     fail(v.loc, fmt::format("'{}' is {}, but 'golden-tolerance' needs a plain number or a percentage", v.quote(),
                             dimension_noun(*v.unit.dimension)));
@@ -1081,6 +1158,11 @@ void FileParser::parse_golden_tolerance(const Token& keyword) {
     rel = to_si(v, Dimension::ratio, "'golden-tolerance'");
   }
   if (!(rel > 0)) report(v.loc, fmt::format("'golden-tolerance' needs a positive tolerance, found '{}'", v.quote()));
+  // At 100 % of each column's peak, a golden file of zeros would pass every waveform.
+  else if (!(rel < 1))
+    report(v.loc, fmt::format("'golden-tolerance' must be below 1 (100 %), found '{}': at 100 % of each column's peak "
+                              "a golden file of zeros passes every waveform",
+                              v.quote()));
   builder_.set_golden_tolerance(rel);
   golden_line_ = keyword.loc.line;
 }
@@ -1127,7 +1209,9 @@ void FileParser::parse_expect(const Token& keyword) {
     if (!at_word("at")) fail_expected("'at TIME' after the observable");
     take();
     c.quantity = ClaimQuantity::at_time;
-    c.time = to_si(take_value("a time"), Dimension::time, "'at'");
+    RawValue at = take_value("a time");
+    c.time = to_si(at, Dimension::time, "'at'");
+    if (std::string fault = time_limit_fault(at, c.time); !fault.empty()) report(at.loc, std::move(fault));
     dim = observable_dimension(pending.observable->kind);
   } else if (q.kind == TokenKind::word) {
     std::string_view k = q.text;
@@ -1287,7 +1371,11 @@ class ArgumentReader : Reader {
 
   Sweep sweep(const Circuit& circuit) {
     return guarded([&] {
-      Sweep s = resolve_sweep(CircuitScope(circuit), parse_sweep_body(true));
+      PendingSweep p = parse_sweep_body(true);
+      Sweep s = resolve_sweep(CircuitScope(circuit), p);
+      // Checked here for an argument, which has no file position for the worst-case search to
+      // name; a file's sweep is refused by that search, at the sweep's line.
+      if (p.member == SweepMember::closes) check_closes_slot(circuit.element(s.element), s, p);
       s.loc = {};
       return s;
     });
@@ -1331,19 +1419,40 @@ Circuit parse_netlist_file(const std::filesystem::path& path) {
     if (!reason.empty()) reason[0] = static_cast<char>(std::tolower(static_cast<unsigned char>(reason[0])));
     return InputError(Diagnostic{"", {}, fmt::format("cannot read {}: {}", name, reason), ""});
   };
+  auto too_long = [&](std::string_view what) {
+    return InputError(Diagnostic{name, {}, fmt::format("{} longer than {} MiB, the most netfold reads (a circuit of "
+                                                       "some 4 million elements); split the circuit, or check that "
+                                                       "this is the file meant",
+                                                       what, kMaxFileBytes >> 20),
+                                 ""});
+  };
   std::FILE* f = std::fopen(name.c_str(), "rb");
   if (!f) throw cannot_read(errno);
-  // Read in one piece where the size is known (a regular file), in chunks otherwise (a pipe).
+  // Read in one piece where the size is known (a regular file), in chunks otherwise (a pipe, a
+  // device). A device may never end (/dev/zero): the size limit and the first NUL byte stop
+  // the reading, long before the memory runs out.
   std::string text;
   std::error_code size_error;
   auto size = std::filesystem::file_size(path, size_error);
-  if (!size_error) text.reserve(static_cast<std::size_t>(size));
+  if (!size_error) {
+    if (size > kMaxFileBytes) {
+      std::fclose(f);
+      throw too_long("the file is");
+    }
+    text.reserve(static_cast<std::size_t>(size));
+  }
   std::array<char, 1 << 16> buffer{};
   std::size_t n = 0;
-  while ((n = std::fread(buffer.data(), 1, buffer.size(), f)) > 0) text.append(buffer.data(), n);
+  bool holds_nul = false;
+  while (!holds_nul && text.size() <= kMaxFileBytes && (n = std::fread(buffer.data(), 1, buffer.size(), f)) > 0) {
+    text.append(buffer.data(), n);
+    holds_nul = std::memchr(buffer.data(), '\0', n) != nullptr;
+  }
   int err = std::ferror(f) ? errno : 0;
   std::fclose(f);
   if (err != 0) throw cannot_read(err);
+  // A NUL byte is reported at its line and column by the text check of parse_source.
+  if (!holds_nul && text.size() > kMaxFileBytes) throw too_long("the input runs");
   return parse_source(std::move(text), std::move(name));
 }
 
@@ -1352,7 +1461,10 @@ Observable parse_observable_argument(const Circuit& circuit, std::string_view te
 }
 
 Sweep parse_sweep_argument(const Circuit& circuit, std::string_view text) {
-  return ArgumentReader(text, "--sweep").sweep(circuit);
+  // The option and its argument, as the user wrote them: a file position would point at nothing.
+  std::string option = detail::find_text_fault(text) ? std::string("--sweep")
+                                                     : fmt::format("--sweep '{}'", shorten(text));
+  return ArgumentReader(text, option).sweep(circuit);
 }
 
 }  // namespace netfold

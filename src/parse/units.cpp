@@ -1,9 +1,12 @@
 #include "netfold/units.hpp"
 
+#include <algorithm>
 #include <array>
 #include <charconv>
 #include <cmath>
 #include <cstdlib>
+#include <limits>
+#include <string>
 #include <numbers>
 
 #include <fmt/format.h>
@@ -90,12 +93,12 @@ const std::array<UnitEntry, 20> kUnits{{
 
 struct PrefixEntry {
   std::string_view text;
-  double multiplier;
+  int exponent;
 };
 
 const std::array<PrefixEntry, 11> kPrefixes{{
-    {"f", 1e-15}, {"p", 1e-12}, {"n", 1e-9}, {"u", 1e-6}, {"\xC2\xB5", 1e-6} /* µ U+00B5 */,
-    {"\xCE\xBC", 1e-6} /* μ U+03BC */, {"m", 1e-3}, {"k", 1e3}, {"M", 1e6}, {"G", 1e9}, {"T", 1e12},
+    {"f", -15}, {"p", -12}, {"n", -9}, {"u", -6}, {"\xC2\xB5", -6} /* µ U+00B5 */,
+    {"\xCE\xBC", -6} /* μ U+03BC */, {"m", -3}, {"k", 3}, {"M", 6}, {"G", 9}, {"T", 12},
 }};
 
 const UnitEntry* find_unit(std::string_view text) {
@@ -104,37 +107,122 @@ const UnitEntry* find_unit(std::string_view text) {
   return nullptr;
 }
 
+UnitSuffix make_suffix(int exponent, const UnitEntry* unit) {
+  UnitSuffix s;
+  s.exponent = exponent;
+  if (unit) {
+    s.scale = unit->scale;
+    s.dimension = unit->dimension;
+    s.rms = unit->rms;
+  }
+  s.multiplier = std::pow(10.0, exponent) * s.scale;
+  return s;
+}
+
+bool is_digit(char c) { return c >= '0' && c <= '9'; }
+
+// The double nearest to the decimal `number` × 10^`shift`, rounded once: the number's mantissa
+// is kept as written and its exponent replaced by exponent + shift, which is exact. Values are
+// short, so the text is rebuilt on the stack: a file of 10⁶ values allocates nothing here.
+Converted exact_decimal(std::string_view number, int shift) {
+  if (number.empty() || number_length(number) != number.size()) return {0.0, ValueFault::not_a_number};
+  const bool negative = number[0] == '-';
+  std::string_view body = number;
+  if (number[0] == '-' || number[0] == '+') body.remove_prefix(1);
+  const std::size_t e_at = body.find_first_of("eE");
+  const std::string_view mantissa = body.substr(0, e_at);
+  long long exponent = shift;
+  if (e_at != std::string_view::npos) {
+    std::string_view digits = body.substr(e_at + 1);
+    const bool minus = digits[0] == '-';
+    if (digits[0] == '-' || digits[0] == '+') digits.remove_prefix(1);
+    long long e = 0;  // saturated far beyond any double's range
+    for (char c : digits) e = std::min<long long>(e * 10 + (c - '0'), 1'000'000'000);
+    exponent += minus ? -e : e;
+  }
+  std::array<char, 128> small{};
+  std::string large;
+  char* text = small.data();
+  const std::size_t room = mantissa.size() + 24;
+  if (room > small.size()) {
+    large.resize(room);
+    text = large.data();
+  }
+  std::copy(mantissa.begin(), mantissa.end(), text);
+  text[mantissa.size()] = 'e';
+  char* end = std::to_chars(text + mantissa.size() + 1, text + room, exponent).ptr;
+  double x = 0.0;
+  auto [stop, ec] = std::from_chars(text, end, x, std::chars_format::scientific);
+  if (ec == std::errc::result_out_of_range) {
+    // Overflow or underflow: the decimal exponent of the leading non-zero digit tells which.
+    const std::size_t point = std::min(mantissa.find('.'), mantissa.size());
+    const std::size_t lead = mantissa.find_first_not_of("0.");
+    const long long place = lead < point ? static_cast<long long>(point - lead) - 1
+                                         : -static_cast<long long>(lead - point);
+    return {0.0, exponent + place > 0 ? ValueFault::overflow : ValueFault::subnormal};
+  }
+  if (ec != std::errc() || stop != end) return {0.0, ValueFault::not_a_number};
+  return {negative ? -x : x, ValueFault::none};
+}
+
 }  // namespace
 
 std::optional<UnitSuffix> parse_unit_suffix(std::string_view text) {
   if (text.empty()) return UnitSuffix{};
-  if (const UnitEntry* u = find_unit(text)) return UnitSuffix{u->scale, u->dimension, u->rms};
+  if (const UnitEntry* u = find_unit(text)) return make_suffix(0, u);
   for (const auto& p : kPrefixes) {
     if (text.substr(0, p.text.size()) != p.text) continue;
     std::string_view rest = text.substr(p.text.size());
-    if (rest.empty()) return UnitSuffix{p.multiplier, std::nullopt, false};
-    if (const UnitEntry* u = find_unit(rest); u && u->takes_prefix)
-      return UnitSuffix{p.multiplier * u->scale, u->dimension, u->rms};
+    if (rest.empty()) return make_suffix(p.exponent, nullptr);
+    if (const UnitEntry* u = find_unit(rest); u && u->takes_prefix) return make_suffix(p.exponent, u);
   }
   return std::nullopt;
+}
+
+std::size_t number_length(std::string_view s) {
+  const std::size_t n = s.size();
+  std::size_t j = 0;
+  if (j < n && (s[j] == '+' || s[j] == '-')) ++j;
+  const std::size_t start = j;
+  while (j < n && is_digit(s[j])) ++j;
+  bool digits = j > start;
+  // A '.' followed by another '.' is the range operator: `0..40ms`.
+  if (j < n && s[j] == '.' && !(j + 1 < n && s[j + 1] == '.') && (digits || (j + 1 < n && is_digit(s[j + 1])))) {
+    ++j;
+    while (j < n && is_digit(s[j])) ++j, digits = true;
+  }
+  if (!digits) return 0;
+  if (j < n && (s[j] == 'e' || s[j] == 'E')) {
+    std::size_t k = j + 1;
+    if (k < n && (s[k] == '+' || s[k] == '-')) ++k;
+    if (k < n && is_digit(s[k])) {
+      j = k;
+      while (j < n && is_digit(s[j])) ++j;
+    }
+  }
+  return j;
+}
+
+Converted convert_value(std::string_view number, const UnitSuffix& unit, Dimension want) {
+  Converted c = exact_decimal(number, unit.exponent);
+  if (c.fault != ValueFault::none) return c;
+  double x = c.value * unit.scale;
+  if (want == Dimension::angle && !unit.dimension) x *= kDegree;  // a bare angle is in degrees
+  // source: definition of the rms value of a sinusoid, peak = rms × √2 (from memory)
+  if (unit.rms) x *= std::numbers::sqrt2;
+  if (!std::isfinite(x)) return {0.0, ValueFault::overflow};
+  if (x != 0.0 && std::fabs(x) < std::numeric_limits<double>::min()) return {0.0, ValueFault::subnormal};
+  return {x, ValueFault::none};
 }
 
 Quantity parse_quantity_argument(std::string_view text, Dimension expected, std::string_view option) {
   std::string_view s = text;
   while (!s.empty() && (s.front() == ' ' || s.front() == '\t')) s.remove_prefix(1);
   while (!s.empty() && (s.back() == ' ' || s.back() == '\t')) s.remove_suffix(1);
-  std::string_view number = s;
-  bool negative = false;
-  if (!number.empty() && (number.front() == '+' || number.front() == '-')) {
-    negative = number.front() == '-';
-    number.remove_prefix(1);
-  }
-  double value = 0.0;
-  auto [end, ec] = std::from_chars(number.data(), number.data() + number.size(), value, std::chars_format::general);
-  if (ec != std::errc() || end == number.data()) {
-    throw argument_error(option, fmt::format("expected {}, found '{}'", dimension_noun(expected), text));
-  }
-  std::string_view suffix(end, static_cast<std::size_t>(number.data() + number.size() - end));
+  const std::size_t length = number_length(s);
+  if (length == 0) throw argument_error(option, fmt::format("expected {}, found '{}'", dimension_noun(expected), text));
+  std::string_view number = s.substr(0, length);
+  std::string_view suffix = s.substr(length);
   while (!suffix.empty() && suffix.front() == ' ') suffix.remove_prefix(1);
   auto unit = parse_unit_suffix(suffix);
   if (!unit) throw argument_error(option, fmt::format("unknown unit '{}' in '{}'", suffix, text));
@@ -145,12 +233,18 @@ Quantity parse_quantity_argument(std::string_view text, Dimension expected, std:
   }
   if (unit->rms)
     throw argument_error(option, fmt::format("'{}': Vrms and Arms only go with the amplitude of a sinusoid", text));
-  double scale = unit->multiplier;
-  // A bare angle is in degrees, as it is in the file format.
-  if (expected == Dimension::angle && !unit->dimension) scale *= kDegree;
-  double v = (negative ? -value : value) * scale;
-  if (!std::isfinite(v)) throw argument_error(option, fmt::format("'{}' is out of range", text));
-  return Quantity{v, dim, unit->rms};
+  Converted c = convert_value(number, *unit, expected);
+  switch (c.fault) {
+    case ValueFault::none: break;
+    case ValueFault::not_a_number:
+      throw argument_error(option, fmt::format("expected {}, found '{}'", dimension_noun(expected), text));
+    case ValueFault::overflow: throw argument_error(option, fmt::format("'{}' is out of range", text));
+    case ValueFault::subnormal:
+      throw argument_error(option, fmt::format("'{}' is too small for double precision to carry (below {:g}); "
+                                               "give 0 or a larger value",
+                                               text, std::numeric_limits<double>::min()));
+  }
+  return Quantity{c.value, dim, unit->rms};
 }
 
 std::string format_si(double value, std::string_view unit, int digits) {
