@@ -100,6 +100,8 @@ class Solution {
   /// The closed form of an observable, one piece per segment. Throws InputError when the
   /// observable is undefined in some segment (a floating node).
   std::vector<Piece> pieces(const Observable& observable) const;
+  /// The closed form of an observable in one segment (throws as pieces() does).
+  Piece piece(const Observable& observable, const Segment& segment) const;
   /// Value at time t (right-continuous at events).
   double value(const Observable& observable, double t) const;
   /// The independent sources, in input order.

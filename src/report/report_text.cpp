@@ -178,7 +178,7 @@ void write_solve_text(std::ostream& out, const SolveReport& report) {
     fmt::print(out, "\n{}\n", segment_heading(c, s));
     if (sol.storage() != kNone) write_state_lines(out, sol, s);
     for (const auto& obs : sol.observables()) {
-      Piece p = sol.pieces(obs)[static_cast<std::size_t>(s.number - 1)];
+      Piece p = sol.piece(obs, s);
       std::string unit(dimension_symbol(obs.dimension()));
       if (p.g) {
         fmt::print(out, "  {}(t) = [{}]·[{}]\n", obs.text, wave_expression(p.f, "V"), wave_expression(*p.g, "A"));
@@ -312,7 +312,7 @@ void write_explanation(std::ostream& out, const Solution& sol) {
     }
     fmt::print(out, "    f. {}(t) = {}\n", sym, wave_expression(s.state, unit));
     for (const auto& obs : sol.observables()) {
-      Piece p = sol.pieces(obs)[static_cast<std::size_t>(s.number - 1)];
+      Piece p = sol.piece(obs, s);
       std::string ounit(dimension_symbol(obs.dimension()));
       if (p.g)
         fmt::print(out, "    g. {}(t) = v·i = [{}]·[{}]\n", obs.text, wave_expression(p.f, "V"), wave_expression(*p.g, "A"));

@@ -385,16 +385,18 @@ std::string Solution::undefined_observable_text(const Observable& obs, const Nod
 std::vector<Piece> Solution::pieces(const Observable& obs) const {
   std::vector<Piece> out;
   out.reserve(segments_.size());
-  for (const auto& seg : segments_) {
-    const NodalSystem& sys = network(seg).system();
-    const ObservableForm form = observable_form(sys, obs);
-    if (!form.defined()) {
-      SourceLoc loc = obs.loc.line > 0 ? obs.loc : (storage_ != kNone ? circuit_->element(storage_).loc : SourceLoc{});
-      throw InputError(circuit_->diagnostic(loc, undefined_observable_text(obs, sys, seg)));
-    }
-    out.push_back(observable_piece(form, seg));
-  }
+  for (const auto& seg : segments_) out.push_back(piece(obs, seg));
   return out;
+}
+
+Piece Solution::piece(const Observable& obs, const Segment& seg) const {
+  const NodalSystem& sys = network(seg).system();
+  const ObservableForm form = observable_form(sys, obs);
+  if (!form.defined()) {
+    SourceLoc loc = obs.loc.line > 0 ? obs.loc : (storage_ != kNone ? circuit_->element(storage_).loc : SourceLoc{});
+    throw InputError(circuit_->diagnostic(loc, undefined_observable_text(obs, sys, seg)));
+  }
+  return observable_piece(form, seg);
 }
 
 Piece Solution::observable_piece(const ObservableForm& form, const Segment& segment) const {
