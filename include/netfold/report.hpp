@@ -126,9 +126,50 @@ PortEquivalent port_equivalent(const Solution& solution, std::optional<std::pair
 void write_equivalent_text(std::ostream& out, const PortEquivalent& eq, const Solution& solution);
 std::string equivalent_json(const PortEquivalent& eq, const Solution& solution);
 
-/// Writes `content` to `path` through a temporary file and a rename, so that a failure never
-/// leaves a half-written file; "-" writes to `out` instead. An unwritable path is an
-/// InputError (exit 2).
-void write_output(const std::string& path, std::string_view content, std::ostream& out);
+/// @name Output files (docs/cli.md, "Output paths")
+
+/// A file a command reads, for check_output_paths.
+struct InputFile {
+  std::filesystem::path path;  ///< as the user named it
+  std::string role;            ///< what it is, for the refusal: "the input circuit"
+};
+
+/// An output a command was asked for: the option naming it and the path as given.
+struct OutputRequest {
+  std::string option;  ///< "--csv"
+  std::string path;    ///< "" = not asked for (skipped); "-" = standard output
+};
+
+/// Checks every output path of a command before anything is computed or written; throws
+/// InputError (exit 2, `netfold: error: --csv 'X.nf': ...`) at the first output that names an
+/// input file or an earlier output (the same file by device and inode: other spellings, links),
+/// exists and is not a regular file (folder, device, FIFO, socket, a link that leads nowhere),
+/// lies in a missing or unwritable folder, or is a second output to standard output ("-").
+/// A symbolic link to a regular file is accepted: that file is replaced, the link kept.
+void check_output_paths(const std::vector<OutputRequest>& outputs, const std::vector<InputFile>& inputs);
+
+/// One output to write.
+struct OutputFile {
+  std::string option;        ///< the option naming it, for messages ("" when none: a golden file)
+  std::string path;          ///< "" = none (skipped); "-" = standard output
+  std::string_view content;  ///< the whole content
+};
+
+/// Writes every file atomically: each to an exclusively created temporary file beside its
+/// target (through a symbolic link: beside the file it leads to), fsync'd, then all renamed
+/// over their targets; then the "-" contents to `out`. A failure removes every temporary file,
+/// replaces no target when it happens before the renames, and is an InputError (exit 2)
+/// naming the option, the path and the system's reason. A target that is not a regular file
+/// is refused here too. Temporary files are registered for install_output_cleanup_handlers.
+void write_outputs(const std::vector<OutputFile>& files, std::ostream& out);
+
+/// write_outputs for one file; `option` names it in messages.
+void write_output(const std::string& path, std::string_view content, std::ostream& out,
+                  std::string_view option = {});
+
+/// Makes SIGINT, SIGTERM and SIGHUP remove the temporary files being written, then end the
+/// process by the signal's default action. For the executable's main: a library must not take
+/// over its host's signals. A signal ignored when this is called stays ignored.
+void install_output_cleanup_handlers();
 
 }  // namespace netfold

@@ -8,6 +8,7 @@
 
 #include "commands.hpp"
 #include "netfold/check.hpp"
+#include "netfold/golden.hpp"
 #include "netfold/report.hpp"
 
 namespace netfold::cli {
@@ -19,6 +20,16 @@ struct CheckArgs {
   bool update_golden = false;
   unsigned jobs = 0;
 };
+
+// Every file the check reads, whichever shard runs: the XML must not replace one of them.
+std::vector<InputFile> check_inputs(const std::vector<std::filesystem::path>& netlists) {
+  std::vector<InputFile> inputs;
+  for (const auto& nf : netlists) {
+    inputs.push_back({nf, "a circuit the check reads"});
+    inputs.push_back({golden_path_for(nf), "a golden waveform beside a circuit the check reads"});
+  }
+  return inputs;
+}
 
 // Erases the progress line, so that report lines and the next progress line start clean.
 constexpr const char* kClearLine = "\r\033[K";
@@ -34,6 +45,7 @@ Command register_check(CLI::App& app) {
   sub->add_option("--jobs", args->jobs, "worker threads (default: the number of cores)");
   return [args]() {
     std::vector<std::filesystem::path> files = find_netlists(args->paths);
+    if (!args->junit.empty()) check_output_paths({{"--junit", args->junit}}, check_inputs(files));
     if (!args->shard.empty()) files = select_shard(files, parse_shard_argument(args->shard));
 
     // With the XML on standard output the text report would corrupt it; it goes nowhere.
@@ -59,7 +71,7 @@ Command register_check(CLI::App& app) {
     if (progress) std::cerr << kClearLine << std::flush;
     if (text) write_summary(std::cout, report);
     else write_summary(std::cerr, report);
-    if (!args->junit.empty()) write_output(args->junit, junit_xml(report), std::cout);
+    if (!args->junit.empty()) write_output(args->junit, junit_xml(report), std::cout, "--junit");
     return report.failed() > 0 ? static_cast<int>(ExitCode::check_failed) : 0;
   };
 }

@@ -24,6 +24,7 @@ Command register_equiv(CLI::App& app) {
   sub->add_option("--at", args->at, "a time that picks the segment (default 0 s)");
   sub->add_option("--json", args->json, "write the equivalent as JSON ('-' = standard output)");
   return [args]() {
+    check_output_paths({{"--json", args->json}}, {{args->file, "the input circuit"}});
     Circuit circuit = parse_netlist_file(args->file);
     double at = args->at.empty() ? 0.0 : parse_quantity_argument(args->at, Dimension::time, "--at").value;
     std::optional<std::pair<NodeId, NodeId>> port;
@@ -47,7 +48,7 @@ Command register_equiv(CLI::App& app) {
     std::string json = args->json.empty() ? "" : equivalent_json(eq, solution);
     std::ostringstream text;
     write_equivalent_text(text, eq, solution);
-    if (!args->json.empty()) write_output(args->json, json, std::cout);
+    if (!args->json.empty()) write_output(args->json, json, std::cout, "--json");
     if (args->json != "-") std::cout << text.str();
     return 0;
   };

@@ -30,8 +30,9 @@ Command register_solve(CLI::App& app) {
   sub->add_flag("--explain", args->explain, "print the derivation step by step with numbers substituted");
   sub->add_flag("--no-verify", args->no_verify, "skip the numerical cross-check");
   return [args]() {
-    int stdout_outputs = (args->csv == "-") + (args->json == "-") + (args->svg == "-");
-    if (stdout_outputs > 1) throw argument_error("solve", "only one of --csv, --json and --svg can go to standard output");
+    check_output_paths({{"--csv", args->csv}, {"--json", args->json}, {"--svg", args->svg}},
+                       {{args->file, "the input circuit"}});
+    const bool to_stdout = args->csv == "-" || args->json == "-" || args->svg == "-";
     Circuit circuit = parse_netlist_file(args->file);
     Solution solution = solve(circuit);
     SolveReport report = build_solve_report(solution);
@@ -45,10 +46,8 @@ Command register_solve(CLI::App& app) {
     write_solve_text(text, report);
     if (args->explain) write_explanation(text, solution);
 
-    if (!args->csv.empty()) write_output(args->csv, csv, std::cout);
-    if (!args->json.empty()) write_output(args->json, json, std::cout);
-    if (!args->svg.empty()) write_output(args->svg, svg, std::cout);
-    if (stdout_outputs == 0) std::cout << text.str();
+    write_outputs({{"--csv", args->csv, csv}, {"--json", args->json, json}, {"--svg", args->svg, svg}}, std::cout);
+    if (!to_stdout) std::cout << text.str();
 
     bool failed = report.verification && !report.verification->passed;
     for (const auto& r : report.ratings) failed |= r.exceeded;

@@ -23,6 +23,7 @@ Command register_verify(CLI::App& app) {
   sub->add_option("--rtol", args->rtol, "pass threshold of max |closed - numeric| / max |closed| (default 1e-6)");
   sub->add_option("--json", args->json, "write the results as JSON ('-' = standard output)");
   return [args]() {
+    check_output_paths({{"--json", args->json}}, {{args->file, "the input circuit"}});
     VerifyOptions options;
     if (!args->rtol.empty()) {
       options.rtol = parse_quantity_argument(args->rtol, Dimension::ratio, "--rtol").value;
@@ -34,7 +35,7 @@ Command register_verify(CLI::App& app) {
     std::string json = args->json.empty() ? "" : verify_json(report);
     std::ostringstream text;
     write_verify_text(text, report, solution);
-    if (!args->json.empty()) write_output(args->json, json, std::cout);
+    if (!args->json.empty()) write_output(args->json, json, std::cout, "--json");
     if (args->json != "-") std::cout << text.str();
     return report.passed ? 0 : static_cast<int>(ExitCode::check_failed);
   };

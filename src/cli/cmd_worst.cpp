@@ -5,6 +5,7 @@
 
 #include "commands.hpp"
 #include "netfold/parse.hpp"
+#include "netfold/report.hpp"
 #include "netfold/worst.hpp"
 
 namespace netfold::cli {
@@ -24,7 +25,7 @@ Command register_worst(CLI::App& app) {
   sub->add_option("--json", args->json, "write the results as JSON ('-' = standard output)");
   sub->add_option("--csv", args->csv, "write worst peak versus the swept argument ('-' = standard output)");
   return [args]() {
-    if (args->json == "-" && args->csv == "-") throw argument_error("worst", "only one of --csv and --json can go to standard output");
+    check_output_paths({{"--json", args->json}, {"--csv", args->csv}}, {{args->file, "the input circuit"}});
     Circuit circuit = parse_netlist_file(args->file);
     std::vector<Sweep> sweeps = circuit.sweeps();
     if (!args->sweeps.empty()) {
@@ -37,8 +38,7 @@ Command register_worst(CLI::App& app) {
     std::string csv = args->csv.empty() ? "" : worst_csv(report);
     std::ostringstream text;
     write_worst_text(text, report, nominal);
-    if (!args->json.empty()) write_output(args->json, json, std::cout);
-    if (!args->csv.empty()) write_output(args->csv, csv, std::cout);
+    write_outputs({{"--json", args->json, json}, {"--csv", args->csv, csv}}, std::cout);
     if (args->json != "-" && args->csv != "-") std::cout << text.str();
     for (const auto& r : report.ratings)
       if (r.exceeded) return static_cast<int>(ExitCode::check_failed);

@@ -6,6 +6,7 @@
 
 #include "commands.hpp"
 #include "netfold/diagnostics.hpp"
+#include "netfold/report.hpp"
 
 int main(int argc, char** argv) {
   CLI::App app{
@@ -40,6 +41,9 @@ int main(int argc, char** argv) {
     std::cerr << fmt::format("netfold: error: {}\nRun 'netfold --help' for the commands and options.\n", e.what());
     return static_cast<int>(netfold::ExitCode::bad_input);
   }
+  // Here and not in the writer: the library must not take over the signals of a program that
+  // embeds it; the executable owns its process, and every command may write files.
+  netfold::install_output_cleanup_handlers();
   try {
     for (auto& [sub, run] : commands)
       if (sub->parsed()) return run();

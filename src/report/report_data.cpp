@@ -1,9 +1,6 @@
-// Report data: ratings, the hazard caution, JSON, CSV, plot data, output files, equivalents.
+// Report data: ratings, the hazard caution, JSON, CSV, plot data, equivalents.
 #include <cmath>
-#include <cstdio>
-#include <fstream>
 #include <numbers>
-#include <system_error>
 
 #include <fmt/format.h>
 #include <nlohmann/json.hpp>
@@ -285,33 +282,6 @@ PlotData plot_data(const Solution& sol) {
     d.event_labels.push_back(label);
   }
   return d;
-}
-
-void write_output(const std::string& path, std::string_view content, std::ostream& out) {
-  if (path == "-") {
-    out << content;
-    return;
-  }
-  std::filesystem::path target(path);
-  std::filesystem::path temp = target;
-  temp += fmt::format(".tmp{}", static_cast<unsigned long>(std::hash<std::string>{}(path) & 0xffffff));
-  {
-    std::ofstream f(temp, std::ios::binary | std::ios::trunc);
-    if (!f) throw argument_error("", fmt::format("cannot write '{}': {}", path, std::strerror(errno)));
-    f.write(content.data(), static_cast<std::streamsize>(content.size()));
-    f.flush();
-    if (!f) {
-      std::error_code ec;
-      std::filesystem::remove(temp, ec);
-      throw argument_error("", fmt::format("cannot write '{}': {}", path, std::strerror(errno)));
-    }
-  }
-  std::error_code ec;
-  std::filesystem::rename(temp, target, ec);
-  if (ec) {
-    std::filesystem::remove(temp, ec);
-    throw argument_error("", fmt::format("cannot write '{}': {}", path, ec.message()));
-  }
 }
 
 namespace {
