@@ -14,6 +14,7 @@
 #include "circuit_helpers.hpp"
 #include "netfold/parse.hpp"
 #include "netfold/verify.hpp"
+#include "response/test_seams.hpp"
 
 using namespace netfold;
 using nftest::Net;
@@ -195,8 +196,9 @@ TEST_CASE("multi-frequency sources pass, and the steady state before t = 0 comes
   VerifyReport r = check(std::move(n).build());
   CHECK(r.passed);
   CHECK(r.numerical.initial_method == InitialStateMethod::shooting);
-  // 50, 60 and 150 Hz share a period of 100 ms.
-  CHECK_THAT(r.notes.front(), Catch::Contains("shooting over 100 ms"));
+  // 50 and 150 Hz share a period of 20 ms; 60 Hz has its own (superposition).
+  CHECK_THAT(r.notes.front(), Catch::Contains("2 groups of harmonically related sinusoids, each by shooting over "
+                                              "its period (20 ms and 16.67 ms"));
 }
 
 TEST_CASE("circuits with a vcvs and a cccs pass", "[verify]") {
@@ -260,7 +262,7 @@ TEST_CASE("an inductor held at zero while its loop is open passes, with no NaN f
 }
 
 TEST_CASE("a closed form whose time constants are 1 % off fails the cross-check", "[verify]") {
-  // SolveOptions::testing_tau_scale multiplies every segment's τ of the closed form only.
+  // The engine's tau_scale seam multiplies every segment's τ of the closed form only.
   Net rc;
   rc.voltage_source("V1", "a", "gnd", nftest::dc(10.0));
   rc.switch_("K1", "a", "b", {nftest::closes(0.0)});
@@ -276,9 +278,8 @@ TEST_CASE("a closed form whose time constants are 1 % off fails the cross-check"
   Circuit c2 = std::move(rl).build();
   for (const Circuit* c : {&c1, &c2})
     for (double scale : {1.01, 0.99}) {
-      SolveOptions so;
-      so.testing_tau_scale = scale;
-      VerifyReport r = check(*c, so);
+      seams::ScopedFaults fault({.tau_scale = scale});
+      VerifyReport r = check(*c);
       INFO("tau × " << scale << ": " << r.message);
       CHECK_FALSE(r.passed);
       CHECK(r.max_rel_error > 1e-3);
@@ -379,9 +380,8 @@ TEST_CASE("every example in netlists/ passes, and fails with its time constants 
     bool has_time_constant = false;
     for (const auto& seg : s.segments()) has_time_constant |= std::isfinite(seg.tau) && seg.tau > 0.0;
     if (has_time_constant) {
-      SolveOptions so;
-      so.testing_tau_scale = 1.01;
-      VerifyReport wrong = check(c, so);
+      seams::ScopedFaults fault({.tau_scale = 1.01});
+      VerifyReport wrong = check(c);
       INFO("with tau x 1.01: " << wrong.message);
       CHECK_FALSE(wrong.passed);
     }

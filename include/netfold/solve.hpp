@@ -33,9 +33,6 @@ struct SolveOptions {
   std::optional<std::pair<ElementId, double>> first_closes;
   /// Use this window instead of the circuit's (or the default one).
   std::optional<Window> window;
-  /// Test-only hook: multiplies every segment's time constant, to prove the numerical
-  /// cross-check catches a wrong closed form. Never set outside tests.
-  double testing_tau_scale = 1.0;
 };
 
 /// Where the state at t = 0− came from.

@@ -10,6 +10,8 @@
 #include <fmt/ranges.h>
 
 #include "netfold/units.hpp"
+#include "response/range.hpp"
+#include "response/test_seams.hpp"
 
 namespace netfold {
 
@@ -337,7 +339,10 @@ const Segment& Solution::segment_at(double t) const {
   return *(it - 1);
 }
 
-LinearForm Solution::observable_form(const Observable& obs, const NodalSystem& sys, bool want_current) const {
+namespace {
+
+// The observable as a linear form of the configuration's unknowns and inputs.
+LinearForm observable_form_of(const Observable& obs, const NodalSystem& sys, bool want_current) {
   switch (obs.kind) {
     case ObservableKind::node_voltage: return sys.node_voltage(obs.node_a);
     case ObservableKind::node_difference: {
@@ -352,6 +357,14 @@ LinearForm Solution::observable_form(const Observable& obs, const NodalSystem& s
       return want_current ? sys.element_current(obs.element) : sys.element_voltage(obs.element);
   }
   return {};
+}
+
+}  // namespace
+
+LinearForm Solution::observable_form(const Observable& obs, const NodalSystem& sys, bool want_current) const {
+  LinearForm form = observable_form_of(obs, sys, want_current);
+  seams::apply_observable_faults(obs, sys, want_current, form);
+  return form;
 }
 
 Wave Solution::observable_wave(const LinearForm& form, const Segment& segment) const {
@@ -496,7 +509,7 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
       for (const auto& p : net.system().problems()) held |= p.kind == TopologyProblem::Kind::inductor_open;
       if (!held && net.system().problems().empty() && net.rcond() >= kSingularRcond) {
         Equivalent eq = storage_equivalent(c, net, s.storage_);
-        if (eq.rate != 0.0) span = 8.0 / std::fabs(eq.rate) * options.testing_tau_scale;
+        if (eq.rate != 0.0) span = 8.0 / std::fabs(eq.rate) * seams::engine_faults().tau_scale;
       }
     }
     const double tau_span = span;
@@ -653,7 +666,7 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
       if (seg.mode == PortMode::held_at_zero) seg.equivalent.rth = kInfinity;
     } else {
       seg.equivalent = storage_equivalent(c, *net, s.storage_);
-      seg.rate = seg.equivalent.rate / options.testing_tau_scale;
+      seg.rate = seg.equivalent.rate / seams::engine_faults().tau_scale;
       seg.tau = seg.rate == 0.0 ? kInfinity : -1.0 / seg.rate;
       if (std::fabs(seg.tau) < kShortestTau)
         fail(c, el[s.storage_].loc,
@@ -720,6 +733,7 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
   if (s.storage_ == kNone)
     s.warnings_.push_back("the circuit has no capacitor or inductor: it is purely resistive, so every segment is "
                           "its DC/AC steady state and there is no time constant");
+  refuse_unrepresentable(s);
   return s;
 }
 
