@@ -148,14 +148,14 @@ InitialState find_initial_state(const Solution& s, Configurations& configs, cons
   std::vector<double> levels;
   for (const auto& sig : signals) levels.push_back(sig.level_before_zero());
   const std::vector<double> d = sensitivities(*pre, storage.value);
+  if (d[0] == 0.0) return undetermined("it sees no resistance before t = 0 (∂f/∂x = 0)");
+  if (!(d[0] < 0.0)) return undetermined(fmt::format("the network before t = 0 makes it grow (∂f/∂x = {:.3g} 1/s)", d[0]));
   // No source reaches the state before t = 0 (they are switched off, or absent): it rests at 0.
   if (forcing_scale(d, levels, signals, 1.0) == 0.0) {
     out.method = InitialStateMethod::dc_operating_point;
     out.note = fmt::format("{} at t = 0-: no source reaches it before t = 0, so it rests at 0 {}", storage.name, unit);
     return out;
   }
-  if (d[0] == 0.0) return undetermined("it sees no resistance before t = 0 (∂f/∂x = 0)");
-  if (!(d[0] < 0.0)) return undetermined(fmt::format("the network before t = 0 makes it grow (∂f/∂x = {:.3g} 1/s)", d[0]));
 
   StateEquation dc(*pre, storage.value, signals, Forcing{levels, false, {}});
   const double x_dc = -dc.rate(0.0, 0.0) / d[0];

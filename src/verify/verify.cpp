@@ -156,16 +156,17 @@ void retry_tighter(const Solution& solution, const VerifyOptions& options, const
   report.notes.push_back(note);
 }
 
-// The comparison's line: the numbers compared, and when the threshold is within reach of the
-// integrator's own error (its tolerance, amplified κ-fold, times a margin of 10), that it
-// cannot vouch for a failure there.
+// The comparison's line: the numbers compared, and when the error found is within the
+// integrator's own (its tolerance, local to a step, accumulated over the run and amplified
+// κ-fold: 1e3·rtol·κ, the margin integrator_rtol_for leaves with a factor of 10 to spare), that
+// it cannot vouch for a failure there.
 std::string compared_text(const Comparison& cmp, const NumericalRun& run, const std::vector<Observable>& observables,
                           double rtol) {
   if (cmp.worst.empty()) return "no observable to compare";
   std::string out = fmt::format("max rel error {:.2g} {} rtol {:.2g} at t = {} in {}", cmp.max_rel_error,
                                 cmp.max_rel_error <= rtol ? "<=" : ">", rtol, format_si(cmp.t_at, "s"), cmp.worst);
   std::string which;
-  const double resolvable = 10.0 * run.rtol * amplification(observables, run, cmp.normalization, which);
+  const double resolvable = 1e3 * run.rtol * amplification(observables, run, cmp.normalization, which);
   if (cmp.max_rel_error > rtol && cmp.max_rel_error <= resolvable)
     out += fmt::format(": a threshold the integrator cannot reach (its tolerance {:.0e} resolves about {:.1g} "
                        "here), not evidence of a wrong closed form",
