@@ -25,13 +25,17 @@
 /// differences of large terms.
 ///
 /// Nothing of the closed form is used: no Thevenin equivalent, no time constant, no phasor
-/// (Drive/Wave), no Solution::pieces/value/initial_state. What is read of a Solution is its
-/// schedule and scenario — the segments' times, switch positions and port modes, the window,
-/// the resolution, the observables and the options — together with the circuit itself. The
-/// state at t = 0− comes from the circuit too: the storage element's `initial` or the option
-/// that overrides it, else the steady state of the network before t = 0, found here (DC
-/// operating point plus, for each group of harmonically related sinusoids, one shooting over
-/// the group's period; see InitialStateMethod).
+/// (Drive/Wave), no Solution::pieces/value/initial_state, no segment's port mode. What is read of
+/// a Solution is its schedule and scenario only — the segments' times and switch positions, the
+/// window, the resolution, the observables and the options (a source's phase, an initial state)
+/// — together with the circuit, from which the numerical path takes the storage element, the
+/// sources in the network stage's input order, whether an inductor is held at zero in a
+/// configuration (its loop open: the format's rule) and the state at t = 0−: the storage
+/// element's `initial` or the option that overrides it, else the steady state of the network
+/// before t = 0, found here (the DC operating point plus, for each group of harmonically related
+/// sinusoids, one shooting over the group's period; see InitialStateMethod), or 0 where the
+/// format says it is undetermined. A seam that falsifies the closed form (src/response/
+/// test_seams.hpp) leaves this path's results bit for bit unchanged (tested).
 ///
 /// Example:
 /// \code

@@ -123,8 +123,9 @@ std::vector<std::vector<double>> harmonic_groups(const std::vector<double>& freq
 InitialState find_initial_state(const Solution& s, Configurations& configs, const std::vector<SourceSignal>& signals,
                                 double scale, StepBudget& budget, double rtol) {
   InitialState out;
-  if (s.storage() == kNone) return out;
-  const Element& storage = s.circuit().element(s.storage());
+  const ElementId storage_id = storage_element(s.circuit());
+  if (storage_id == kNone) return out;
+  const Element& storage = s.circuit().element(storage_id);
   const std::string unit = unit_of_state(storage);
   const std::optional<double> given = s.options().initial_state ? s.options().initial_state : storage.initial;
   if (given) {

@@ -115,8 +115,8 @@ SamplePlan plan_samples(const Solution& s) {
 double input_scale(const Solution& s, const std::vector<SourceSignal>& signals) {
   double m = 0.0;
   for (const auto& sig : signals) m = std::max(m, sig.magnitude());
-  if (s.storage() != kNone) {
-    const auto& initial = s.options().initial_state ? s.options().initial_state : s.circuit().element(s.storage()).initial;
+  if (const ElementId storage = storage_element(s.circuit()); storage != kNone) {
+    const auto& initial = s.options().initial_state ? s.options().initial_state : s.circuit().element(storage).initial;
     if (initial) m = std::max(m, std::fabs(*initial));
   }
   if (!(m > 0.0) || !std::isfinite(m)) return 1.0;
@@ -130,23 +130,27 @@ struct Run {
   NumericalRun& out;
   std::vector<SourceSignal> signals;
   double scale = 1.0;
+  ElementId storage = kNone;
   double storage_value = 1.0;
   double hmax = 0.0;
+  std::vector<PortMode> seg_mode;  // the numerical path's own reading of each segment's topology
   std::vector<const Configuration*> seg_config;
   std::vector<std::vector<double>> seg_levels;
 };
 
 // Each segment's configuration and levels, the state's scale through the MNA, and atol.
 void prepare_segments(Run& r, Configurations& configs, const IntegrateOptions& options) {
-  const bool has_storage = r.s.storage() != kNone;
+  const bool has_storage = r.storage != kNone;
   double state_scale = std::fabs(r.out.initial_state) / r.scale;
   for (const auto& seg : r.s.segments()) {
     const std::string where =
         fmt::format("segment {} ({} .. {})", seg.number, format_si(seg.from, "s"), format_si(seg.to, "s"));
-    r.seg_config.push_back(&configs.get(seg.positions, seg.mode, where));
+    const PortMode mode = has_storage ? configs.mode_for(seg.positions, where) : PortMode::port;
+    r.seg_mode.push_back(mode);
+    r.seg_config.push_back(&configs.get(seg.positions, mode, where));
     std::vector<double> levels;
     for (const auto& sig : r.signals) levels.push_back(sig.level_at(seg.from));
-    if (has_storage && seg.mode == PortMode::port)
+    if (has_storage && mode == PortMode::port)
       state_scale = std::max(state_scale, forcing_scale(sensitivities(*r.seg_config.back(), r.storage_value), levels,
                                                         r.signals, r.s.window().to));
     r.seg_levels.push_back(std::move(levels));
@@ -199,14 +203,14 @@ bool record(Run& r, StateEquation& eq, double t, std::uint32_t seg, double z) {
 // was not finite (in the run's).
 bool run_segments(Run& r, const SamplePlan& plan, Integrator& cv) {
   const auto& segments = r.s.segments();
-  const bool has_storage = r.s.storage() != kNone;
+  const bool has_storage = r.storage != kNone;
   double z = r.out.initial_state / r.scale;
   std::size_t p = 0;
   for (std::uint32_t i = 0; i < segments.size(); ++i) {
     const Segment& seg = segments[i];
     StateEquation eq(*r.seg_config[i], r.storage_value, r.signals, Forcing{r.seg_levels[i], true, {}});
     // Without a storage element, or with an inductor held at zero, there is no ODE: the state is 0.
-    const bool ode = has_storage && seg.mode == PortMode::port;
+    const bool ode = has_storage && r.seg_mode[i] == PortMode::port;
     if (!ode) z = 0.0;
     if (ode) cv.start(eq, seg.from, z, seg.to, r.out.rtol, r.out.atol / r.scale, r.hmax);
     for (; p < plan.times.size() && plan.segment[p] == i; ++p) {
@@ -288,7 +292,8 @@ NumericalRun integrate_network(const Solution& s, const IntegrateOptions& option
   for (auto& sig : r.signals) sig.inv_scale = 1.0 / r.scale;
   out.input_scale = r.scale;
   r.hmax = step_limit(source_frequencies(r.signals));
-  if (s.storage() != kNone) r.storage_value = s.circuit().element(s.storage()).value;
+  r.storage = storage_element(s.circuit());
+  if (r.storage != kNone) r.storage_value = s.circuit().element(r.storage).value;
 
   // 1. The instants to compare.
   const SamplePlan plan = plan_samples(s);

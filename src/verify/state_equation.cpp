@@ -57,6 +57,11 @@ double evaluate(const LinearForm& form, const Eigen::VectorXd& x, const Eigen::V
   return y;
 }
 
+ElementId storage_element(const Circuit& circuit) {
+  const std::vector<ElementId> storages = circuit.storage_elements();
+  return storages.empty() ? kNone : storages.front();
+}
+
 double SourceSignal::sinusoids_at(double t, const std::vector<double>* only) const {
   double v = 0.0;
   for (const auto& s : waveform->sinusoids) {
@@ -84,7 +89,8 @@ double SourceSignal::magnitude() const {
 
 std::vector<SourceSignal> source_signals(const Solution& s, double inv_scale) {
   std::vector<SourceSignal> out;
-  for (ElementId id : s.sources()) {
+  // The network stage's input layout (u[1 + k] = source k), read from the circuit, not the schedule.
+  for (ElementId id : independent_sources(s.circuit())) {
     const Element& e = s.circuit().element(id);
     SourceSignal sig{&e.waveform, 0.0, inv_scale};
     const auto& phase = s.options().source_phase;
@@ -178,6 +184,26 @@ const Configuration& Configurations::get(const SwitchPositions& positions, PortM
 
 const Configuration* Configurations::find(const SwitchPositions& positions, PortMode mode, std::string& why) {
   return lookup(positions, mode, why);
+}
+
+PortMode Configurations::mode_for(const SwitchPositions& positions, const std::string& where) {
+  std::vector<bool> key = positions.closed;
+  if (auto it = modes_.find(key); it != modes_.end()) return it->second;
+  std::string why;
+  PortMode mode = PortMode::port;
+  if (!lookup(positions, PortMode::port, why)) {
+    // The format's rule: an inductor whose loop is open carries no current, held at zero there;
+    // any other problem the engine reports as an error before the cross-check runs.
+    const NodalSystem sys = build_nodal_system(circuit_, positions, BuildOptions{PortMode::port, std::nullopt});
+    const auto& p = sys.problems();
+    const bool loop_open = !p.empty() && std::all_of(p.begin(), p.end(), [](const TopologyProblem& q) {
+      return q.kind == TopologyProblem::Kind::inductor_open;
+    });
+    if (!loop_open) throw NumericError(fmt::format("cross-check: {} in {}, which the engine did not report", why, where));
+    mode = PortMode::held_at_zero;
+  }
+  modes_.emplace(std::move(key), mode);
+  return mode;
 }
 
 Configuration* Configurations::lookup(const SwitchPositions& positions, PortMode mode, std::string& why) {

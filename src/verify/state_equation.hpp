@@ -23,6 +23,10 @@ namespace netfold::integration {
 // y = Σ c·x_i + Σ c·u_j.
 double evaluate(const LinearForm& form, const Eigen::VectorXd& x, const Eigen::VectorXd& u);
 
+// The circuit's storage element (kNone for a resistive circuit), read from the circuit; the
+// engine refuses a circuit with more than one before the cross-check runs.
+ElementId storage_element(const Circuit& circuit);
+
 // One source's waveform as the numerical path sees it, divided by the input scale.
 struct SourceSignal {
   const Waveform* waveform = nullptr;
@@ -88,6 +92,9 @@ class Configurations {
   // The configuration, or nullptr with `why` when its equations have a structural problem or a
   // singular matrix (the network before t = 0 may be degenerate: the format allows it).
   const Configuration* find(const SwitchPositions& positions, PortMode mode, std::string& why);
+  // How the storage element enters the equations of a configuration, decided here from the
+  // topology: held_at_zero for an inductor whose loop is open (the format's rule), port otherwise.
+  PortMode mode_for(const SwitchPositions& positions, const std::string& where);
   long count() const { return static_cast<long>(items_.size()); }
 
  private:
@@ -95,6 +102,7 @@ class Configurations {
   const std::vector<Observable>& observables_;
   std::vector<std::unique_ptr<Configuration>> items_;
   std::unordered_map<std::vector<bool>, std::size_t> index_;  // positions + mode → items_
+  std::unordered_map<std::vector<bool>, PortMode> modes_;      // positions → mode_for
 
   Configuration* lookup(const SwitchPositions& positions, PortMode mode, std::string& why);
   std::unique_ptr<Configuration> assemble(const SwitchPositions& positions, PortMode mode, std::string& why) const;
