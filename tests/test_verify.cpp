@@ -571,8 +571,8 @@ window 0 s .. 30 ms
 
 }  // namespace
 
-TEST_CASE("a wrong time constant, node difference or current direction injected in the engine fails verify; "
-          "none passes",
+TEST_CASE("issue 12 (done when): a wrong time constant, node difference or current direction injected in the "
+          "engine fails verify; none passes",
           "[verify]") {
   Circuit c = parse_netlist(kSeamCircuit, "seam.nf");
   VerifyReport clean = check(c);
@@ -600,7 +600,8 @@ TEST_CASE("a wrong time constant, node difference or current direction injected 
   CHECK(check(c).passed);
 }
 
-TEST_CASE("the numerical run is the same with every engine fault injected: it reads none of the closed form",
+TEST_CASE("issue 12 (done when): the numerical run is the same with every engine fault injected: it reads none "
+          "of the closed form",
           "[verify]") {
   Circuit c = parse_netlist(kSeamCircuit, "seam.nf");
   const Solution right = solve(c);
