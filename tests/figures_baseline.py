@@ -53,6 +53,21 @@ INTENDED_CHANGES = {
         "issue 12 item 8: equal crests of the periodic steady state; the first is now reported",
     ("tests/degenerate/resistances_span_600_decades.nf", "*", "/error"):
         "issue 12 item 7: the documented resistance span is now 1e13 (refined solve), the message says so",
+    # issue 12 item 11: one verdict per file. The engine step every command runs (solve())
+    # now refuses what `solve` refused in its report only: a figure beyond double precision,
+    # a watched observable undefined in some segment; `equiv` and `worst` no longer answer.
+    ("tests/fuzz/regressions/huge_source_energy_overflow.nf", "equiv", "*"):
+        "issue 12 item 11: refused by every command (the energy of C1 overflows)",
+    ("tests/fuzz/regressions/huge_source_energy_overflow.nf", "worst", "*"):
+        "issue 12 item 11: refused by every command (the energy of C1 overflows)",
+    ("tests/degenerate/floating_node_watched.nf", "equiv", "*"):
+        "issue 12 item 11: refused by every command (a watched node floats)",
+    ("tests/degenerate/floating_node_watched.nf", "worst", "*"):
+        "issue 12 item 11: refused by every command (a watched node floats)",
+    ("tests/degenerate/watched_node_floats_when_open.nf", "equiv", "*"):
+        "issue 12 item 11: refused by every command (a watched node floats while K1 is open)",
+    ("tests/degenerate/watched_node_floats_when_open.nf", "worst", "*"):
+        "issue 12 item 11: refused by every command (a watched node floats while K1 is open)",
 }
 
 # The argument of a smooth maximum found by golden-section search is fixed only to about √ε of

@@ -33,9 +33,6 @@ struct SolveOptions {
   std::optional<std::pair<ElementId, double>> first_closes;
   /// Use this window instead of the circuit's (or the default one).
   std::optional<Window> window;
-  /// Test-only hook: multiplies every segment's time constant, to prove the numerical
-  /// cross-check catches a wrong closed form. Never set outside tests.
-  double testing_tau_scale = 1.0;
 };
 
 /// Where the state at t = 0− came from.
@@ -132,6 +129,7 @@ class Solution {
 
   Wave observable_wave(const LinearForm& form, const Segment& segment) const;
   Piece observable_piece(const ObservableForm& form, const Segment& segment) const;
+  ObservableForm engine_form(const Observable& obs, const NodalSystem& sys) const;
   std::string undefined_observable_text(const Observable& obs, const NodalSystem& sys, const Segment& seg) const;
 };
 

@@ -3,12 +3,19 @@
 /// Stage 5 of the pipeline: the closed form checked against an independent numerical
 /// integration of the same network (integrate.hpp) on the sample grid.
 ///
-/// For each observable y (Solution::observables()), over the samples t_k of the window:
+/// For each observable y (Solution::observables()), over the compared instants t_k of the
+/// window (NumericalRun::times: the sample grid, or a documented subset of a very long one):
 ///
-///     e_y = max_k |y_closed(t_k) − y_numeric(t_k)| / N_y,   N_y = max(max_k |y_closed(t_k)|, 1e-6·S_D)
+///     e_y = max_k |y_closed(t_k) − y_numeric(t_k)| / N_y,
+///     N_y = max(max_k |y_numeric(t_k)|, 1e-6·S_D, 2.2e-308)
 ///
-/// with S_D the largest max_k |y_closed| among the observables of the same dimension D (V, A or
-/// W); the check passes when max_y e_y ≤ rtol (dimensionless, default 1e-6).
+/// with S_D the largest bound B_y that the circuit puts on the observables of the same dimension
+/// D (V, A or W) — from the sources' magnitudes, the state's and the network's gains, on the
+/// numerical path (NumericalRun::observable_bound); where those are all 0, the bound on any
+/// element's voltage or current. Nothing of the closed form enters N_y: a closed form cannot
+/// enlarge its own yardstick, and an observable that is exactly zero (a capacitor current at
+/// rest) is judged at the resolution of what the circuit can make of it, not relatively to its
+/// own rounding noise. The check passes when max_y e_y ≤ rtol (dimensionless, default 1e-6).
 ///
 /// Example (an RC charging from 10 V through 1 kΩ, 1 µF, from 0 V; its default window):
 /// \code
@@ -19,6 +26,7 @@
 ///   // r.stats.steps == 4053 (one step end per sample of the 4001, plus the start-up)
 /// \endcode
 
+#include <limits>
 #include <string>
 #include <vector>
 
@@ -29,7 +37,7 @@ namespace netfold {
 
 /// Options of verify_closed_form.
 struct VerifyOptions {
-  /// Pass threshold on max |closed − numeric| / max |closed| (dimensionless), > 0.
+  /// Pass threshold on max |closed − numeric| / N_y (dimensionless, see the file comment), > 0.
   double rtol = 1e-6;
   /// CVODE's own relative tolerance; ≤ 0 means "from rtol" (integrator_rtol_for).
   double integrator_rtol = 0.0;
@@ -37,9 +45,11 @@ struct VerifyOptions {
   long max_steps = 5'000'000;
 };
 
-/// Share of S_D (the largest magnitude of the observables of a dimension) below which an
+/// Share of S_D (the circuit's bound on the observables of a dimension) below which an
 /// observable's own magnitude no longer normalizes its error (see the file comment).
 inline constexpr double kZeroFloorFraction = 1e-6;
+/// Smallest N_y: the smallest normal double, below which no relative error is resolved.
+inline constexpr double kSmallestNormalization = std::numeric_limits<double>::min();
 
 /// The comparison for one observable.
 struct ObservableError {
@@ -47,7 +57,7 @@ struct ObservableError {
   Dimension dimension = Dimension::voltage;
   double max_abs_error = 0.0;  ///< max |closed − numeric| (V, A or W)
   double t_at = 0.0;           ///< where it occurs, s
-  double max_closed = 0.0;     ///< max |closed| over the samples
+  double max_closed = 0.0;     ///< max |closed| over the samples (reported, not compared against)
   double max_numeric = 0.0;    ///< max |numeric| over the samples
   double normalization = 0.0;  ///< N_y (see the file comment)
   double max_rel_error = 0.0;  ///< max_abs_error / N_y, finite
@@ -73,8 +83,8 @@ struct VerifyReport {
   NumericalRun numerical;            ///< the numerical waveforms (times, state, values)
 };
 
-/// Integrates the network of `solution` numerically and compares it with the closed form on
-/// the sample grid (see the file comment). A threshold the integrator cannot reach, or a run
+/// Integrates the network of `solution` numerically and compares it with the closed form at
+/// the compared instants (see the file comment). A threshold the integrator cannot reach, or a run
 /// that cannot finish, is a failed report, not an exception. Throws InputError for rtol ≤ 0 and
 /// for an observable undefined in some segment; NumericError when CVODE cannot be set up.
 VerifyReport verify_closed_form(const Solution& solution, const VerifyOptions& options = {});

@@ -27,8 +27,9 @@ void write_verify_text(std::ostream& out, const VerifyReport& r, const Solution&
   const Circuit& c = sol.circuit();
   fmt::print(out, "netfold verify: {}{}\n", c.title().empty() ? c.source().path() : c.title(),
              c.title().empty() ? "" : fmt::format("  ({})", c.source().path()));
-  fmt::print(out, "closed form against {} (CVODE, BDF, Newton) on the full nodal equations, {} samples\n",
-             r.method, r.samples);
+  const std::size_t grid = r.numerical.grid_samples;
+  fmt::print(out, "closed form against {} (CVODE, BDF, Newton) on the full nodal equations, {} samples{}\n", r.method,
+             r.samples, r.numerical.sample_stride > 1 ? fmt::format(" of a grid of {} (see the note)", grid) : "");
   fmt::print(out, "integrator tolerances: rtol {:.1e}, atol {}\n\n", r.integrator_rtol,
              sol.storage() != kNone
                  ? format_si(r.integrator_atol, c.element(sol.storage()).kind == ElementKind::capacitor ? "V" : "A", 3)
@@ -67,6 +68,7 @@ std::string verify_json(const VerifyReport& r) {
   j["error_test_failures"] = r.stats.error_test_failures;
   j["nonlinear_conv_failures"] = r.stats.nonlinear_conv_failures;
   j["samples"] = r.samples;
+  j["grid_samples"] = r.numerical.grid_samples;
   j["integrator_rtol"] = detail::json_number(r.integrator_rtol);
   j["message"] = r.message;
   j["notes"] = r.notes;

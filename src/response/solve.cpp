@@ -10,6 +10,8 @@
 #include <fmt/ranges.h>
 
 #include "netfold/units.hpp"
+#include "response/range.hpp"
+#include "response/test_seams.hpp"
 
 namespace netfold {
 
@@ -391,7 +393,7 @@ std::vector<Piece> Solution::pieces(const Observable& obs) const {
 
 Piece Solution::piece(const Observable& obs, const Segment& seg) const {
   const NodalSystem& sys = network(seg).system();
-  const ObservableForm form = observable_form(sys, obs);
+  const ObservableForm form = engine_form(obs, sys);
   if (!form.defined()) {
     SourceLoc loc = obs.loc.line > 0 ? obs.loc : (storage_ != kNone ? circuit_->element(storage_).loc : SourceLoc{});
     throw InputError(circuit_->diagnostic(loc, undefined_observable_text(obs, sys, seg)));
@@ -407,7 +409,15 @@ Piece Solution::observable_piece(const ObservableForm& form, const Segment& segm
 
 double Solution::value(const Observable& obs, double t) const {
   const Segment& seg = segment_at(t);
-  return observable_piece(observable_form(network(seg).system(), obs), seg).value(t);
+  return observable_piece(engine_form(obs, network(seg).system()), seg).value(t);
+}
+
+// The one observable form, through the test seam that can falsify it (test_seams.hpp).
+ObservableForm Solution::engine_form(const Observable& obs, const NodalSystem& sys) const {
+  ObservableForm form = observable_form(sys, obs);
+  seams::apply_observable_faults(obs, sys, false, form.value);
+  if (form.current) seams::apply_observable_faults(obs, sys, true, *form.current);
+  return form;
 }
 
 Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<NetworkCache> cache) {
@@ -484,7 +494,7 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
       for (const auto& p : net.system().problems()) held |= p.kind == TopologyProblem::Kind::inductor_open;
       if (!held && net.system().problems().empty() && net.rcond() >= kSingularRcond) {
         Equivalent eq = storage_equivalent(c, net, s.storage_);
-        if (eq.rate != 0.0) span = 8.0 / std::fabs(eq.rate) * options.testing_tau_scale;
+        if (eq.rate != 0.0) span = 8.0 / std::fabs(eq.rate) * seams::engine_faults().tau_scale;
       }
     }
     const double tau_span = span;
@@ -641,7 +651,7 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
       if (seg.mode == PortMode::held_at_zero) seg.equivalent.rth = kInfinity;
     } else {
       seg.equivalent = storage_equivalent(c, *net, s.storage_);
-      seg.rate = seg.equivalent.rate / options.testing_tau_scale;
+      seg.rate = seg.equivalent.rate / seams::engine_faults().tau_scale;
       seg.tau = seg.rate == 0.0 ? kInfinity : -1.0 / seg.rate;
       if (std::fabs(seg.tau) < kShortestTau)
         fail(c, el[s.storage_].loc,
@@ -708,6 +718,7 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
   if (s.storage_ == kNone)
     s.warnings_.push_back("the circuit has no capacitor or inductor: it is purely resistive, so every segment is "
                           "its DC/AC steady state and there is no time constant");
+  refuse_unrepresentable(s);
   return s;
 }
 

@@ -37,6 +37,9 @@ for bin in "${binaries[@]}"; do
   [[ -n "$needed" ]] || fail "$(basename "$bin") names no shared library"
   while read -r soname; do
     lib="$(awk -v so="$soname" '$1 == so && $2 == "=>" { print $3 }' <<<"$resolved")"
+    # The dynamic loader (named when thread-local storage is used from position-independent
+    # code) is listed by ldd by its path alone, without "=>".
+    [[ -n "$lib" ]] || lib="$(awk -v so="$soname" '$1 ~ ("/" so "$") { print $1 }' <<<"$resolved")"
     [[ -n "$lib" ]] || fail "$(basename "$bin"): $soname is not found on this system"
     # dpkg knows a library by the path its package installed, before or after /usr merging.
     owner="$( (dpkg -S "$lib" 2>/dev/null || dpkg -S "$(readlink -f "$lib")" 2>/dev/null) | head -n1 | cut -d: -f1)"

@@ -1,0 +1,70 @@
+#pragma once
+// CVODE (BDF, Newton, a dense Newton matrix) on one StateEquation at a time, restarted at every
+// event; private to src/verify/.
+
+#include <string>
+
+#include <nvector/nvector_serial.h>
+#include <sundials/sundials_context.h>
+#include <sundials/sundials_linearsolver.h>
+#include <sundials/sundials_matrix.h>
+
+#include "netfold/integrate.hpp"
+#include "verify/state_equation.hpp"
+
+namespace netfold::integration {
+
+// The step budget shared by every run of one integration (shooting runs and segments).
+struct StepBudget {
+  long limit = 0;
+  long used = 0;  // steps of the runs finished so far
+};
+
+// CVODE with a 1×1 dense Newton matrix (the state is scalar); its Jacobian ∂f/∂x is CVODE's own
+// difference quotient of the right-hand side, so nothing but f enters the integration. With
+// `quadrature`, the system has a second component Q = ∫x dt from each start (dQ/dt = x, a 2×2
+// Newton matrix; CVODE has no separate quadrature), under the same error control.
+class Integrator {
+ public:
+  Integrator(StepBudget& budget, bool quadrature);
+  ~Integrator();
+  Integrator(const Integrator&) = delete;
+  Integrator& operator=(const Integrator&) = delete;
+
+  // (Re)starts at x(t0) = x0 on `eq`, never stepping past tstop; hmax = 0: no step limit.
+  void start(StateEquation& eq, double t0, double x0, double tstop, double rtol, double atol, double hmax);
+  // Advances to t (t0 ≤ t ≤ tstop) and gives x(t); false when the run had to stop (status()).
+  bool advance_to(double t, double& x);
+  // ∫x dt from the start to the last output (quadrature runs only).
+  double quadrature() const { return q_; }
+  // Adds the counters of the run since the last start() to the totals and to the budget.
+  void finish();
+
+  const IntegrationStats& totals() const { return total_; }
+  IntegrationStatus status() const { return status_; }
+  const std::string& message() const { return message_; }
+
+ private:
+  StepBudget* budget_;
+  bool quadrature_;
+  SUNContext ctx_ = nullptr;
+  N_Vector y_ = nullptr, atol_ = nullptr;
+  SUNMatrix a_ = nullptr;
+  SUNLinearSolver ls_ = nullptr;
+  void* mem_ = nullptr;
+  bool initialized_ = false;
+  StateEquation* eq_ = nullptr;
+  double t0_ = 0.0, x0_ = 0.0, tstop_ = 0.0;
+  double t_ = 0.0, x_ = 0.0, q_ = 0.0;  // last output
+  IntegrationStats total_, base_;
+  IntegrationStatus status_ = IntegrationStatus::ok;
+  std::string message_, last_error_;
+
+  void release();
+  void check(int flag, const char* what);
+  IntegrationStats counters() const;
+  bool stop_for_budget(double t);
+  static void on_error(int code, const char* module, const char* function, char* msg, void* self);
+};
+
+}  // namespace netfold::integration
