@@ -52,7 +52,7 @@ double brute_force_worst(const Circuit& c, const Sweep& sweep, const Observable&
   for (double deg = sweep.from * 180 / kPi; deg <= sweep.to * 180 / kPi + 1e-9; deg += 0.1) {
     SolveOptions o;
     o.window = nominal.window();
-    o.source_phase = std::make_pair(sweep.element, deg * kPi / 180);
+    o.scenario = scenario_at(sweep, deg * kPi / 180);
     Solution s = solve(c, o, cache);
     double best = 0.0;
     for (const auto& p : s.pieces(obs)) {
@@ -160,7 +160,7 @@ TEST_CASE("a sweep of the residual state finds the worst at the charge that adds
   const SweepExtreme& ex = s.report.sweeps[0].observables[0];
   CHECK((ex.worst_at == -50.0 || ex.worst_at == 50.0));
   SolveOptions o;
-  o.initial_state = ex.worst_at;
+  o.scenario.residual_states.push_back({*s.circuit->find_element("C1"), ex.worst_at});
   Solution at = solve(*s.circuit, o);
   CHECK_REL(find_peak(at, s.circuit->watches()[0]).value, ex.worst, 1e-12);
 }

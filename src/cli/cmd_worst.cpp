@@ -5,6 +5,7 @@
 
 #include "commands.hpp"
 #include "netfold/parse.hpp"
+#include "netfold/report.hpp"
 #include "netfold/worst.hpp"
 
 namespace netfold::cli {
