@@ -59,10 +59,10 @@ void validate_sweep(const Circuit& c, const Sweep& sw, const Solution& nominal) 
   if (!nominal.window_is_default() && sw.to >= w.to)
     fail(c, sw.loc,
          fmt::format("the sweep moves {}'s first 'closes' up to {}, at or past the end of the declared window "
-                     "({} .. {}): there {} would not close within the window; end the range before {} or "
+                     "({} .. {}): from {} on, {} would not close within the window; end the range before {} or "
                      "lengthen the window",
                      c.element(sw.element).name, format_si(sw.to, "s"), format_si(w.from, "s"), format_si(w.to, "s"),
-                     c.element(sw.element).name, format_si(w.to, "s")));
+                     format_si(w.to, "s"), c.element(sw.element).name, format_si(w.to, "s")));
 }
 
 SolveOptions options_for(const Sweep& sw, const Window& window, double x) {
@@ -84,8 +84,8 @@ auto at_argument(const Circuit& c, const Sweep& sw, double x, F&& f) -> decltype
     std::string original = d ? d->message : std::string(e.what());
     std::string line = d && d->loc.line > 0 ? fmt::format(" (line {})", d->loc.line) : "";
     fail(c, sw.loc,
-         fmt::format("the sweep of {} reaches {} = {}, where the circuit cannot be solved: {}{}; narrow the range",
-                     sw.text, sw.text, sweep_argument_text(c, sw, x), original, line));
+         fmt::format("the sweep of {} reaches {}, where the circuit cannot be solved: {}{}; narrow the range",
+                     sw.text, sweep_argument_text(c, sw, x), original, line));
   }
 }
 
