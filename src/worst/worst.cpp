@@ -43,7 +43,7 @@ ClosesSlot closes_slot(const Element& e) {
 // A sweep range the circuit cannot take is refused at the sweep's line. A closing time at or
 // past the end of a declared window would leave the switch open for the whole window at part
 // of the range, and that part would be scored as "never closes": refused rather than scored.
-// (A default window is lengthened instead; see find_worst_case.)
+// (A default window is lengthened instead; see search_sweep.)
 void validate_sweep(const Circuit& c, const Sweep& sw, const Solution& nominal) {
   if (!(sw.from < sw.to)) fail(c, sw.loc, fmt::format("the sweep of {} needs FROM < TO", sw.text));
   if (sw.step && !(*sw.step > 0.0)) fail(c, sw.loc, fmt::format("the sweep of {} needs a positive step", sw.text));
@@ -72,9 +72,9 @@ SolveOptions options_for(const Sweep& sw, const Window& window, double x) {
   return o;
 }
 
-// The circuit solved at one argument of a sweep. A circuit that solves at its declared values
-// but not at this argument is the sweep's doing: the error is given at the sweep's line, with
-// the argument and the original message (which names the element at fault).
+// Runs f (a solve, a measure) at one argument of a sweep. A circuit that solves at its declared
+// values but not at this argument is the sweep's doing: the error is given at the sweep's line,
+// with the argument and the original message (which names the element at fault).
 template <typename F>
 auto at_argument(const Circuit& c, const Sweep& sw, double x, F&& f) -> decltype(f()) {
   try {
