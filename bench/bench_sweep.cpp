@@ -61,7 +61,7 @@ void register_all() {
       std::vector<std::unique_ptr<Solution>> schedules;
       for (double deg : phases) {
         SolveOptions o;
-        o.source_phase = std::pair{v1, deg * std::numbers::pi / 180.0};
+        o.scenario.source_phases.push_back({v1, deg * std::numbers::pi / 180.0});
         schedules.push_back(std::make_unique<Solution>(solve(c, o)));
       }
       std::size_t k = 0;

@@ -7,7 +7,7 @@ title "Relay coil with a flyback resistor"
 V_supply:  voltage-source p -> gnd, dc 24 V
 coil_r:    resistor p -> m, 960 ohm
 coil_l:    inductor m -> d, 2 H
-R_fly:     resistor p -> d, 1 kohm, rated 0.5 W
+R_fly:     resistor p -> d, 1 kohm, rated 1 W   # 0.58 W while Q1 is on: it sits across the supply
 Q1:        switch d -> gnd, closes at 0 s, opens at 50 ms, on 0.5 ohm, rated 100 mA
 
 watch coil_l.i, @d

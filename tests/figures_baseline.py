@@ -68,6 +68,56 @@ INTENDED_CHANGES = {
         "issue 12 item 11: refused by every command (a watched node floats while K1 is open)",
     ("tests/degenerate/watched_node_floats_when_open.nf", "worst", "*"):
         "issue 12 item 11: refused by every command (a watched node floats while K1 is open)",
+    # Issue 12 item 6 (ratings, spec v2): new fields of every rating line.
+    ("netlists/*.nf", "solve", "/json/ratings/*/where"):
+        "new field: where the rated figure occurs (the time of a peak, the segment of a mean power)",
+    ("netlists/*.nf", "worst", "/json/ratings/*/where"):
+        "new field: where the rated figure occurs (the time of a peak, the segment of a mean power)",
+    ("netlists/*.nf", "solve", "/json/ratings/*/worst_at"):
+        "new field: the sweep argument of a worst-case rating (null at the nominal values)",
+    ("netlists/*.nf", "worst", "/json/ratings/*/worst_at"):
+        "new field: the sweep argument of a worst-case rating (null at the nominal values)",
+    # Issue 12 item 6: `rated P` is the largest steady-state mean power over the segments.
+    ("netlists/heater_contactor.nf", "solve", "/json/ratings/3/*"):
+        "R_heater mean power 0 W -> 1.966 kW: the steady state while the contactor is closed (segment 1), "
+        "not the last segment's (contactor open)",
+    ("netlists/heater_contactor.nf", "worst", "/json/ratings/3/*"):
+        "R_heater mean power 0 W -> 1.966 kW: the steady state while the contactor is closed (segment 1), "
+        "not the last segment's (contactor open)",
+    ("netlists/snubber_contact.nf", "solve", "/json/ratings/0/*"):
+        "R_load mean power 20.4 W (the window's mean) -> 96 W, (48 V)^2 / 24 ohm while the contact is closed",
+    ("netlists/snubber_contact.nf", "worst", "/json/ratings/0/*"):
+        "R_load mean power 20.4 W (the window's mean) -> 96 W, (48 V)^2 / 24 ohm while the contact is closed",
+    ("netlists/relay_flyback.nf", "solve", "/json/ratings/0/*"):
+        "R_fly mean power 415 mW (the window's mean) -> 575 mW while Q1 is on; the file's rating raised "
+        "from 0.5 W (exceeded under the v2 rule) to 1 W",
+    ("netlists/relay_flyback.nf", "worst", "/json/ratings/0/*"):
+        "R_fly mean power 415 mW (the window's mean) -> 575 mW while Q1 is on; the file's rating raised "
+        "from 0.5 W (exceeded under the v2 rule) to 1 W",
+    ("netlists/coil_reclose.nf", "worst", "/json/*ratings/1/*"):
+        "R_fw mean power 7.30 W (the window's mean, worst over the residual current) -> 5.76 W, "
+        "(24 V)^2 / 100 ohm while the contact is closed, the same at every argument",
+    ("netlists/valve_coil.nf", "worst", "/json/*ratings/2/*"):
+        "free_r mean power 0 W -> 1.226 W, (24 V)^2 / 470 ohm while K1 is closed; the file's rating raised "
+        "from 0.5 W (exceeded under the v2 rule) to 2 W",
+    # Issue 12 item 6: with sweeps declared, solve rates the worst case over them.
+    ("netlists/valve_coil.nf", "solve", "/json/ratings/*"):
+        "solve rates the worst case over supply.phase (K1 894 mA -> 1.062 A, coil_l 858 mA -> 1.021 A) and "
+        "free_r's steady-state power (0 W -> 1.226 W, rated 2 W)",
+    ("netlists/coil_reclose.nf", "solve", "/json/ratings/*"):
+        "solve rates the worst case over coil_l.initial (K1 2.239 A -> 2.24 A, coil_l 1.9993 A -> 2 A) and "
+        "R_fw's steady-state power (7.24 W -> 5.76 W)",
+    ("netlists/cap_reclose.nf", "solve", "/json/ratings/*"):
+        "solve rates the worst case over the three sweeps (K1 45.9 A -> 65.0 A, R_damp 2.19 J -> 3.78 J, "
+        "C1 325.08 V -> 325.11 V)",
+    ("netlists/night_light_dropper.nf", "solve", "/json/ratings/*"):
+        "solve rates the worst case over mains.phase (R_inrush energy 9.63 mJ -> 9.69 mJ, C1 290.1 V -> 292.2 V)",
+    ("netlists/harmonic_supply.nf", "solve", "/json/ratings/*"):
+        "solve rates the worst case over supply.phase (K1 and L_line 24.04 A -> 25.24 A, issue 12 item 4)",
+    # Issue 12 item 4: a phase sweep of a source with harmonics is a time shift.
+    ("netlists/harmonic_supply.nf", "worst", "/json/*"):
+        "supply.phase moves the 150 Hz and 250 Hz terms by 3x and 5x the angle (a time shift): worst "
+        "L_line.i 24.85 A at 67.9 deg -> 25.24 A at -90 deg, @b 248.5 V -> 252.4 V",
 }
 
 # The argument of a smooth maximum found by golden-section search is fixed only to about √ε of

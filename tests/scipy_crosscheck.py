@@ -325,6 +325,160 @@ def case_list():
     ]
 
 
+# ---------------------------------------------------------------------------------------------
+# Sweeps and ratings: each check is a self-contained function (netfold, directory) -> (name,
+# passed, detail). The reference derives the waveform of every sweep argument from the format's
+# rule by hand (spec v2, "Sweep arguments are in the user's terms": a phase sweep is a shift of
+# the source's time origin, harmonic k moves by k·Δ, the DC part stays), integrates each with
+# scipy.integrate.solve_ivp (DOP853, rtol 1e-12; source: SciPy 1.10 documentation) and searches
+# the arguments itself: a 1° grid, then scipy.optimize.minimize_scalar (bounded) around the best.
+
+ARG_TOL_DEG = 0.01      # worst arguments agree to this (the peak is flat at its maximum)
+
+
+def netfold_json(netfold, directory, name, netlist, command):
+    path = os.path.join(directory, name + ".nf")
+    with open(path, "w", encoding="utf-8") as f:
+        f.write(netlist.lstrip())
+    args = [netfold, command, path, "--json", "-"] + (["--no-verify"] if command == "solve" else [])
+    proc = subprocess.run(args, capture_output=True, text=True)
+    if proc.returncode not in (0, 1) or not proc.stdout.startswith("{"):
+        raise RuntimeError(f"netfold {command} exited {proc.returncode}: {proc.stderr.strip() or proc.stdout[:200]}")
+    import json
+    return json.loads(proc.stdout)
+
+
+def rl_peak(v, R, L, t_end, exact=False):
+    """max |i| over [0, t_end] of L·di/dt = v(t) - R·i, i(0) = 0 (a contact closing at t = 0 onto
+    R + L with no current before). A peak of |i| is where di/dt = 0: an event of the integration.
+    With `exact`, the largest candidate is integrated again to its own time, so that its value
+    is an end point of the integration rather than an interpolation."""
+    rhs = lambda t, y: [(v(t) - R * y[0]) / L]
+    slope = lambda t, y: v(t) - R * y[0]
+    sol = solve_ivp(rhs, (0.0, t_end), [0.0], method="DOP853", rtol=1e-12, atol=1e-12, events=slope,
+                    dense_output=True)
+    if not sol.success:
+        raise RuntimeError(f"solve_ivp failed: {sol.message}")
+    times = list(sol.t_events[0]) + [t_end]
+    values = [abs(float(y[0])) for y in sol.y_events[0]] + [abs(float(sol.y[0, -1]))]
+    k = int(np.argmax(values))
+    if not exact or times[k] == t_end:
+        return values[k]
+    again = solve_ivp(rhs, (0.0, times[k]), [0.0], method="DOP853", rtol=1e-13, atol=1e-13)
+    return abs(float(again.y[0, -1]))
+
+
+def worst_over_phase(peak_at, from_deg, to_deg):
+    """(worst value, argument in degrees) of peak_at(phase_deg) over [from, to]."""
+    from scipy.optimize import minimize_scalar
+    grid = np.arange(from_deg, to_deg + 0.5, 1.0)
+    grid = grid[grid <= to_deg]
+    values = [peak_at(p, False) for p in grid]
+    k = int(np.argmax(values))
+    lo, hi = max(from_deg, grid[k] - 1.0), min(to_deg, grid[k] + 1.0)
+    res = minimize_scalar(lambda p: -peak_at(p, True), bounds=(lo, hi), method="bounded",
+                          options={"xatol": 1e-7})
+    best = (-res.fun, res.x)
+    for p in (lo, hi, grid[k]):  # a maximum at an end of the range
+        y = peak_at(p, True)
+        if y > best[0]:
+            best = (y, p)
+    return best
+
+
+def compare_sweep(name, netfold_result, reference, symmetric):
+    worst, at = netfold_result["worst_peak"], math.degrees(netfold_result["at"])
+    ref_worst, ref_at = reference
+    rel = abs(worst - ref_worst) / ref_worst
+    d = at - ref_at
+    if symmetric:  # i → −i at phase + 180°: both arguments are the worst
+        d = (d + 90.0) % 180.0 - 90.0
+    passed = rel <= RTOL_PASS and abs(d) <= ARG_TOL_DEG
+    return (name, passed, f"worst {worst:.10g} A at {at:.5f}° (SciPy {ref_worst:.10g} A at {ref_at:.5f}°): "
+                          f"rel error {rel:.2g}, argument off by {abs(d):.2g}°")
+
+
+def check_sine_phase_sweep(netfold, directory):
+    # A sine source's phase sweep in the sine's own terms: v = 325·sin(ωt + p), p the swept
+    # `phase` as written. Closed at t = 0 onto R = 1 ohm, L = 31.83 mH (X/R = 10):
+    # L·di/dt = v - R·i. The range -60°..60° holds the sine's zero crossing; read as a cosine's
+    # phase it would not.
+    R, L, w = 1.0, 31.83e-3, TWO_PI * 50.0
+    result = netfold_json(netfold, directory, "sine_sweep", """
+supply: voltage-source s -> gnd, sine 325 V 50 Hz phase 30 deg
+K1: switch s -> a, closes at 0 s
+R1: resistor a -> b, 1 ohm
+L1: inductor b -> gnd, 31.83 mH
+watch L1.i
+window 0 s .. 100 ms
+sweep supply.phase -60 deg .. 60 deg
+""", "worst")["sweeps"][0]["results"]["L1.i"]
+    ref = worst_over_phase(lambda p, exact: rl_peak(lambda t: 325.0 * math.sin(w * t + math.radians(p)), R, L, 0.1,
+                                                     exact), -60.0, 60.0)
+    return compare_sweep("sine_phase_sweep", result, ref, symmetric=False)
+
+
+def check_harmonic_phase_sweep(netfold, directory):
+    # A phase sweep of a distorted supply moves its time origin: with x the swept phase of the
+    # first sinusoid (50 Hz, written at 0°), v = 20 + 300·cos(ωt + x) + 60·sin(3ωt + 40° + 3x)
+    # + 30·cos(5ωt + 5x); the 20 V DC part stays. Onto R = 2 ohm, L = 20 mH.
+    R, L, w = 2.0, 20e-3, TWO_PI * 50.0
+
+    def v_at(x_deg):
+        x = math.radians(x_deg)
+        return lambda t: (20.0 + 300.0 * math.cos(w * t + x) + 60.0 * math.sin(3 * w * t + math.radians(40.0) + 3 * x)
+                          + 30.0 * math.cos(5 * w * t + 5 * x))
+    result = netfold_json(netfold, directory, "harmonic_sweep", """
+supply: voltage-source s -> gnd, dc 20 V + cosine 300 V 50 Hz + sine 60 V 150 Hz phase 40 deg + cosine 30 V 250 Hz
+K1: switch s -> a, closes at 0 s
+R1: resistor a -> b, 2 ohm
+L1: inductor b -> gnd, 20 mH
+watch L1.i
+window 0 s .. 60 ms
+sweep supply.phase -180 deg .. 180 deg step 5 deg
+""", "worst")["sweeps"][0]["results"]["L1.i"]
+    ref = worst_over_phase(lambda p, exact: rl_peak(v_at(p), R, L, 0.06, exact), -180.0, 180.0)
+    return compare_sweep("harmonic_phase_sweep", result, ref, symmetric=False)
+
+
+def check_resistor_power_rating(netfold, directory):
+    # `rated P` across an opening contact (spec v2, "Ratings"): the heater's largest steady-state
+    # mean power over the segments, whatever the window. Contact closed: with Rp = R_light ∥ R_heater,
+    # L·di/dt = v - R_f·i - Rp·i, v_bus = Rp·i, p_heater = v_bus²/R_heater. SciPy integrates
+    # [i, ∫p dt] for 8 periods (τ = 42 µs) and takes the mean over the last one. After the
+    # contact opens the heater takes nothing, so the figure must not depend on the window.
+    Rf, L, Rl, Rh, w = 0.2, 1e-3, 230.0, 26.45, TWO_PI * 50.0
+    Rp = Rl * Rh / (Rl + Rh)
+    v = cos_wave(230.0 * SQRT2, 50.0)
+    sol = solve_ivp(lambda t, y: [(v(t) - (Rf + Rp) * y[0]) / L, (Rp * y[0]) ** 2 / Rh], (0.0, 0.16), [0.0, 0.0],
+                    method="Radau", rtol=1e-12, atol=[1e-12, 1e-12], t_eval=[0.14, 0.16])
+    if not sol.success:
+        raise RuntimeError(f"solve_ivp failed: {sol.message}")
+    reference = (sol.y[1, 1] - sol.y[1, 0]) / 0.02
+    netlist = """
+grid:      voltage-source l -> n, cosine 230 Vrms 50 Hz
+R_feeder:  resistor l -> f, 0.2 ohm
+L_feeder:  inductor f -> bus, 1 mH
+R_light:   resistor bus -> n, 230 ohm
+K_heat:    switch bus -> h, closes at 0 s, opens at 100 ms
+R_heater:  resistor h -> n, 26.45 ohm, rated 1.5 kW
+ground n
+"""
+    details, passed = [], True
+    for window in ("", "window 0 s .. 300 ms\n", "window 0 s .. 2 s\n"):
+        rating = netfold_json(netfold, directory, "heater_rating", netlist + window, "solve")["ratings"][0]
+        rel = abs(rating["actual"] - reference) / reference
+        ok = rel <= RTOL_PASS and rating["exceeded"] and rating.get("where", "").startswith("segment 1,")
+        passed &= ok
+        details.append(f"{window.strip() or 'default window'}: {rating['actual']:.10g} W ({rating.get('where')}), "
+                       f"rel error {rel:.2g}")
+    return ("resistor_power_rating", passed, f"SciPy {reference:.10g} W; " + "; ".join(details))
+
+
+def extra_checks():
+    return [check_sine_phase_sweep, check_harmonic_phase_sweep, check_resistor_power_rating]
+
+
 def run_netfold(netfold, case, directory):
     path = os.path.join(directory, case.name + ".nf")
     with open(path, "w", encoding="utf-8") as f:
@@ -425,7 +579,16 @@ def main():
             detail = ", ".join(f"{n} {r:.2g}" for n, r, _ in results)
             print(f"{verdict} {case.name}: max rel error {worst[1]:.2g} {'<=' if verdict == 'PASS' else '>'} "
                   f"{RTOL_PASS:g} at t = {worst[2]:.6g} s in {worst[0]} ({detail}; {len(times)} samples)")
-    print(f"{len(case_list()) - failures} passed, {failures} failed")
+        for check in extra_checks():
+            try:
+                name, passed, detail = check(netfold, directory)
+            except (RuntimeError, OSError, ValueError, KeyError, IndexError) as e:
+                print(f"FAIL {check.__name__}: {e}")
+                failures += 1
+                continue
+            failures += not passed
+            print(f"{'PASS' if passed else 'FAIL'} {name}: {detail}")
+    print(f"{len(case_list()) + len(extra_checks()) - failures} passed, {failures} failed")
     return 1 if failures else 0
 
 

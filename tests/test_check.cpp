@@ -420,3 +420,35 @@ TEST_CASE("issue 12 limits: a file named by two spellings is found once, under i
   CHECK(report.files.size() == 2);
   CHECK(report.passed() == 2);
 }
+
+TEST_CASE("issue 12 item 6: every declared rating is a case of check, failed when exceeded", "[check]") {
+  // Spec (v2): "A rating exceeded is exit 1 in every command, and a failed case in check". K1
+  // carries 34 A when closed at the declared crest, 56 A at the worst closing angle of the sweep.
+  TempDir dir;
+  const fs::path file = dir.path() / "inrush.nf";
+  write_file(file,
+             "supply: voltage-source s -> gnd, cosine 325 V 50 Hz\n"
+             "K1: switch s -> a, closes at 0 s, rated 45 A\n"
+             "R1: resistor a -> b, 1 ohm, rated 2 kW\n"
+             "L1: inductor b -> gnd, 31.83 mH\nwatch L1.i\nwindow 0 .. 100 ms\n"
+             "sweep supply.phase -180 deg .. 180 deg\n"
+             "expect worst peak L1.i < 60 A\n");
+  FileResult r = check_file(file, false);
+  REQUIRE(r.cases.size() == 3);
+  CHECK(r.cases[0].kind == CaseKind::claim);
+  CHECK(r.cases[0].passed);
+  const CaseResult& k1 = r.cases[1];
+  CHECK(k1.kind == CaseKind::rating);
+  CHECK(k1.name == "K1 peak current");
+  CHECK(k1.location == file.generic_string() + ":2");
+  CHECK_FALSE(k1.passed);
+  CHECK_FALSE(k1.is_error());
+  CHECK_THAT(k1.message, Catch::StartsWith("computed 56.") && Catch::Contains(" A > rated 45 A (124.") &&
+                             Catch::Contains("worst case at supply.phase = "));
+  const CaseResult& r1 = r.cases[2];
+  // R1's steady-state power: |I|²/2 × 1 ohm = 522.9 W, |I| = 325 V / |1 + j·10| ohm = 32.34 A.
+  CHECK(r1.passed);
+  CHECK_THAT(r1.message, Catch::StartsWith("computed 522.9") && Catch::Contains("<= rated 2 kW"));
+  CHECK(r.failures() == 1);
+  CHECK_THAT(junit_xml(CheckReport{{r}, 0.0, "t", 1}), Catch::Contains("type=\"rating\""));
+}

@@ -329,8 +329,12 @@ TEST_CASE("10^6 periods in the window end in a FAIL with the step budget named, 
 }
 
 TEST_CASE("the solve options a sweep changes are honoured by the numerical path", "[verify]") {
+  // The swept source has one sinusoid: the numerical path still reads a swept phase as one
+  // angle (SolveOptions::source_phase), which is the scenario's time shift only for such a
+  // source; V0's harmonics stay where they are written.
   Net n;
-  ElementId v1 = n.voltage_source("V1", "a", "gnd", nftest::cosine(100.0, 50.0) + nftest::cosine(20.0, 250.0, 1.0));
+  n.voltage_source("V0", "a", "m", nftest::cosine(100.0, 50.0) + nftest::cosine(20.0, 250.0, 1.0));
+  ElementId v1 = n.voltage_source("V1", "m", "gnd", nftest::cosine(30.0, 50.0, 0.3));
   ElementId k1 = n.switch_("K1", "a", "b", {nftest::closes(1e-3), nftest::opens(14e-3)});
   n.resistor("R1", "b", "c", 10.0);
   n.capacitor("C1", "c", "gnd", 200e-6);
@@ -338,9 +342,9 @@ TEST_CASE("the solve options a sweep changes are honoured by the numerical path"
   n.window(0.0, 40e-3);
   Circuit c = std::move(n).build();
   SolveOptions so;
-  so.source_phase = {v1, -1.2};
-  so.first_closes = {k1, 3.3e-3};
-  so.initial_state = 5.0;
+  so.scenario.source_phases.push_back({v1, -1.2});
+  so.scenario.first_closings.push_back({k1, 3.3e-3});
+  so.scenario.residual_states.push_back({*c.find_element("C1"), 5.0});
   VerifyReport r = check(c, so);
   CHECK(r.passed);
   CHECK(r.numerical.initial_method == InitialStateMethod::given);

@@ -1,8 +1,9 @@
 #pragma once
 /// \file check.hpp
 /// `netfold check`: a circuit library as a regression suite. Every `.nf` file under the given
-/// paths is parsed and solved; every `expect` claim is evaluated, and a golden waveform is
-/// compared where one sits beside the file. Files run in parallel; results are reported in
+/// paths is parsed and solved; every `expect` claim is evaluated, every rating is judged (at
+/// the worst case over the file's sweeps), and a golden waveform is compared where one sits
+/// beside the file. Files run in parallel; results are reported in
 /// the sorted file order, so the output does not depend on the number of threads. See
 /// docs/check.md.
 ///
@@ -26,6 +27,7 @@ namespace netfold {
 /// What one case of a file checked.
 enum class CaseKind {
   claim,     ///< an `expect` line
+  rating,    ///< a rating attribute, judged at the worst case over the sweeps (failed when exceeded)
   golden,    ///< the golden waveform comparison
   refusal,   ///< an error-gallery file, expected to be refused
   parse,     ///< the file does not parse (an error: nothing else could run)

@@ -51,6 +51,21 @@ struct ClaimResult {
 /// message says why.
 std::vector<ClaimResult> evaluate_claims(const Circuit& circuit, const Solution& solution);
 
+/// The claims and the ratings of a circuit, evaluated together so that one worst-case search
+/// serves both.
+struct CircuitVerdicts {
+  std::vector<ClaimResult> claims;   ///< one per `expect` line, in file order
+  std::vector<ClaimResult> ratings;  ///< one per rating attribute, in file order
+};
+
+/// Evaluates the claims (as evaluate_claims) and judges every rating (spec v2: every declared
+/// rating is a case of `check`, failed when exceeded). A rating is judged at the worst case
+/// over the declared sweeps, or at `solution` when there is none. A rating's result has the
+/// text "K1 peak current", the position of the rating attribute, computed = the stress,
+/// margin = rated − stress, and a message such as "computed 325.1 A > rated 100 A (325.1 %
+/// used; at 5.1 ms; worst case at supply.phase = -87.3°)".
+CircuitVerdicts evaluate_verdicts(const Circuit& circuit, const Solution& solution);
+
 /// Every claim of `circuit` as a failed result with `reason` as its message, for a circuit
 /// that does not solve.
 std::vector<ClaimResult> unevaluated_claims(const Circuit& circuit, const std::string& reason);

@@ -13,24 +13,11 @@
 #include <vector>
 
 #include "netfold/plot.hpp"
+#include "netfold/ratings.hpp"
 #include "netfold/solve.hpp"
 #include "netfold/verify.hpp"
 
 namespace netfold {
-
-/// A rating compared with the solved (or worst-case) stress.
-struct RatingCheck {
-  ElementId element = kNone;
-  RatingKind kind = RatingKind::peak_current;
-  std::string quantity;     ///< "peak voltage", "peak current", "mean power", "energy", "I²t"
-  double rated = 0.0;       ///< SI
-  double actual = 0.0;      ///< SI
-  double used_percent = 0.0;
-  bool exceeded = false;
-  bool worst_case = false;  ///< the actual value is the worst over the declared sweeps
-  std::string unit;         ///< symbol for reports
-  SourceLoc loc;
-};
 
 /// Energy and I²t of an element over the window.
 struct ElementTotals {
@@ -69,19 +56,10 @@ void write_verify_text(std::ostream& out, const VerifyReport& report, const Solu
 /// JSON of `verify` (fields of docs/cli.md).
 std::string verify_json(const VerifyReport& report);
 
-/// Computes figures, totals and ratings of a solution (ratings against the solved values).
+/// Computes figures, totals and ratings of a solution. With sweeps declared in the circuit,
+/// the ratings are judged at the worst case over them (worst_case_ratings, worst.hpp; spec v2
+/// "Ratings"), else at the solved values.
 SolveReport build_solve_report(const Solution& solution);
-
-/// Compares every rating of the circuit with the solution's stress.
-std::vector<RatingCheck> check_ratings(const Solution& solution);
-
-/// The stress a rating limits, from the solution: peak |v| or |i|, mean power, energy or I²t.
-double rating_stress(const Solution& solution, ElementId element, RatingKind kind);
-
-/// "peak voltage", "peak current", "mean power", "energy", "I²t".
-std::string_view rating_quantity(RatingKind kind);
-/// "V", "A", "W", "J", "A²s".
-std::string_view rating_unit(RatingKind kind);
 
 /// True when a source exceeds 50 V AC (rms) or 120 V DC, or a reported voltage exceeds
 /// 120 V peak. (Extra-low-voltage limits: IEC 61140 / IEC 60449 voltage band I, from memory.)

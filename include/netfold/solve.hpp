@@ -19,18 +19,16 @@
 #include "netfold/closed_form.hpp"
 #include "netfold/netlist.hpp"
 #include "netfold/reduce.hpp"
+#include "netfold/scenario.hpp"
+#include "netfold/schedule.hpp"
 
 namespace netfold {
 
-/// Changes to the circuit as declared, for sweeps and what-if runs.
+/// How to solve: the scenario (what a sweep or what-if run changes, in the user's terms) and
+/// the window.
 struct SolveOptions {
-  /// A source's phase: its first sinusoid's phase becomes this (rad); its other sinusoids
-  /// shift by the same angle.
-  std::optional<std::pair<ElementId, double>> source_phase;
-  /// The storage element's state at t = 0− (V or A), replacing `initial` or the steady state.
-  std::optional<double> initial_state;
-  /// A switch's first `closes` event moves to this time (s); its later events keep theirs.
-  std::optional<std::pair<ElementId, double>> first_closes;
+  /// Changes to the circuit as declared, applied once (scenario.hpp).
+  Scenario scenario;
   /// Use this window instead of the circuit's (or the default one).
   std::optional<Window> window;
 };
@@ -38,7 +36,7 @@ struct SolveOptions {
 /// Where the state at t = 0− came from.
 enum class InitialStateSource : std::uint8_t {
   attribute,     ///< the storage element's `initial`
-  option,        ///< SolveOptions::initial_state (a sweep)
+  option,        ///< the scenario's ResidualState (a sweep)
   steady_state,  ///< the steady state of the network before t = 0
   undetermined,  ///< no steady state (isolated, unstable, ramping): started from 0
   none,          ///< no storage element
@@ -105,6 +103,10 @@ class Solution {
   const std::vector<ElementId>& sources() const { return sources_; }
   /// The options the solution was computed with.
   const SolveOptions& options() const { return options_; }
+  /// The circuit's inputs under the options' scenario (effective waveforms and events).
+  const AppliedScenario& applied() const { return applied_; }
+  /// The events and segments the solution was computed on.
+  const Schedule& schedule() const { return schedule_; }
   /// The reduced network of a segment (its coefficients give any quantity).
   const ReducedNetwork& network(const Segment& segment) const;
   /// Drive of an input combination c (c[j] per input; c[0] ignored) in a segment.
@@ -115,6 +117,8 @@ class Solution {
   const Circuit* circuit_ = nullptr;
   std::shared_ptr<NetworkCache> cache_;
   SolveOptions options_;
+  AppliedScenario applied_;
+  Schedule schedule_;
   ElementId storage_ = kNone;
   std::vector<ElementId> sources_;
   std::vector<Segment> segments_;
@@ -169,9 +173,15 @@ Figures compute_figures(const Solution& solution, const Observable& observable);
 double element_energy(const Solution& solution, ElementId id, double* scale = nullptr);
 /// ∫i² dt through element `id` over the window (A²s), exact.
 double element_i2t(const Solution& solution, ElementId id);
-/// Mean power of element `id` over one fundamental period of the steady state, or over
-/// the window where there is no sinusoid (W).
-double element_mean_power(const Solution& solution, ElementId id);
+/// Sustained power of element `id` (W), the figure a resistor's `rated P` is judged by (spec
+/// v2, "Ratings"): the largest steady-state mean power over the segments, whatever the window.
+/// A segment's figure is DC·DC + ½·Σ Re(V·I*) over the phasors of equal frequency of its
+/// steady-state voltage and current (the mean over one fundamental period where the
+/// frequencies are harmonics of the fundamental; the DC power where there is no sinusoid). A
+/// segment with no steady state (a ramp, an unstable response) counts with its mean over its
+/// part of the window. `segment`, when given, receives the number of the segment of the figure
+/// (0 when no segment has one).
+double element_mean_power(const Solution& solution, ElementId id, int* segment = nullptr);
 
 /// The caution printed on every report of a circuit above 50 V AC (rms) or 120 V DC.
 extern const char* const kHazardCaution;

@@ -119,11 +119,12 @@ CaseResult internal_case(const std::string& file, const std::string& what) {
   return c;
 }
 
-void add_claims(FileResult& result, std::vector<ClaimResult> claims, double seconds) {
+void add_claims(FileResult& result, std::vector<ClaimResult> claims, double seconds,
+                CaseKind kind = CaseKind::claim) {
   const double share = claims.empty() ? 0.0 : seconds / static_cast<double>(claims.size());
   for (auto& r : claims) {
     CaseResult c;
-    c.kind = CaseKind::claim;
+    c.kind = kind;
     c.name = r.text;
     c.location = r.location();
     c.passed = r.passed;
@@ -209,7 +210,13 @@ void run_file(FileResult& result, const std::filesystem::path& path, bool update
   const double solve_seconds = seconds_since(stage_start);
 
   auto claims_start = Clock::now();
-  add_claims(result, evaluate_claims(*circuit, *solution), solve_seconds + seconds_since(claims_start));
+  CircuitVerdicts verdicts = evaluate_verdicts(*circuit, *solution);
+  const double verdict_seconds = solve_seconds + seconds_since(claims_start);
+  const double share = verdict_seconds / static_cast<double>(std::max<std::size_t>(
+                                             1, verdicts.claims.size() + verdicts.ratings.size()));
+  add_claims(result, std::move(verdicts.claims), share * static_cast<double>(verdicts.claims.size()));
+  add_claims(result, std::move(verdicts.ratings), share * static_cast<double>(verdicts.ratings.size()),
+             CaseKind::rating);
 
   auto golden_start = Clock::now();
   if (std::optional<GoldenResult> g = check_golden(*solution, path, update_golden)) {
@@ -271,6 +278,7 @@ std::size_t utf8_sequence(std::string_view s, std::size_t i) {
 const char* kind_name(CaseKind kind) {
   switch (kind) {
     case CaseKind::claim: return "claim";
+    case CaseKind::rating: return "rating";
     case CaseKind::golden: return "golden";
     case CaseKind::refusal: return "refusal";
     case CaseKind::parse: return "parse";

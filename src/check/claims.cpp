@@ -83,16 +83,6 @@ Circuit with_watches(const Circuit& c, const std::vector<Observable>& observed, 
   return std::move(b).build();
 }
 
-std::string sweep_argument_text(const Circuit& c, const Sweep& sw, double x) {
-  switch (sw.target) {
-    case SweepTarget::source_phase: return format_si(x * kRadToDeg, "°", 4);
-    case SweepTarget::storage_initial:
-      return format_si(x, c.element(sw.element).kind == ElementKind::inductor ? "A" : "V", 4);
-    case SweepTarget::switch_closes: return format_si(x, "s", 4);
-  }
-  return format_si(x, "", 4);
-}
-
 // Evaluates the claims of one circuit, computing each costly thing (figures of an
 // observable, the worst-case search) once however many claims use it.
 class ClaimEvaluator {
@@ -242,6 +232,51 @@ class ClaimEvaluator {
     }
   }
 
+ public:
+  // Every rating, at the worst case over the sweeps: the claims' search when it ran (it
+  // covers the ratings too), else a search of the ratings alone.
+  std::vector<ClaimResult> ratings() {
+    std::vector<RatingCheck> checks;
+    try {
+      if (c_.sweeps().empty()) checks = check_ratings(s_);
+      else if (worst_done_ && worst_) checks = worst_->ratings;
+      else checks = worst_case_ratings(c_, c_.sweeps());
+    } catch (const Error& e) {
+      std::vector<ClaimResult> out;
+      for (const auto& el : c_.elements())
+        for (const auto& r : el.ratings) {
+          ClaimResult cr;
+          cr.text = fmt::format("{} {}", el.name, rating_quantity(r.kind));
+          cr.path = c_.source().path();
+          cr.loc = r.loc.line > 0 ? r.loc : el.loc;
+          cr.message = fmt::format("cannot be evaluated: {}", error_text(e));
+          out.push_back(std::move(cr));
+        }
+      return out;
+    }
+    std::vector<ClaimResult> out;
+    for (const RatingCheck& r : checks) out.push_back(rating_result(r));
+    return out;
+  }
+
+  ClaimResult rating_result(const RatingCheck& r) const {
+    ClaimResult cr;
+    const Element& e = c_.element(r.element);
+    cr.text = fmt::format("{} {}", e.name, r.quantity);
+    cr.path = c_.source().path();
+    cr.loc = r.loc.line > 0 ? r.loc : e.loc;
+    cr.computed = r.actual;
+    cr.margin = r.rated - std::fabs(r.actual);
+    cr.passed = !r.exceeded;
+    std::string detail = fmt::format("{} used", percent_text(r.used_percent));
+    if (!r.where.empty()) detail += "; " + r.where;
+    if (!r.worst_argument.empty()) detail += "; " + r.worst_argument;
+    cr.message = fmt::format("computed {} {} rated {} ({})", format_si(std::fabs(r.actual), r.unit, kComputedDigits),
+                             r.exceeded ? ">" : "<=", format_si(r.rated, r.unit, kClaimedDigits), detail);
+    return cr;
+  }
+
+ private:
   Evaluation worst_peak(const Claim& claim) {
     if (c_.sweeps().empty())
       return undefined(fmt::format("worst peak {} needs a sweep: declare one with 'sweep TARGET FROM .. TO' "
@@ -257,7 +292,7 @@ class ClaimEvaluator {
         if (!best || ex.worst > *best) {
           best = ex.worst;
           where = fmt::format("over sweep {}, at {}, t = {}", sweep.sweep.text,
-                              sweep_argument_text(c_, sweep.sweep, ex.worst_at), format_si(ex.t_peak, "s"));
+                              sweep_argument_text(c_, sweep.sweep, ex.worst_at, 4), format_si(ex.t_peak, "s"));
         }
       }
     if (!best) return undefined(fmt::format("the worst-case search did not cover {}", claim.observable.text));
@@ -340,25 +375,38 @@ ClaimResult compare_claim(const Claim& claim, const std::string& path, double co
   return r;
 }
 
+namespace {
+
+ClaimResult claim_result(ClaimEvaluator& evaluator, const Circuit& circuit, const Claim& claim) {
+  Evaluation e = evaluator.evaluate(claim);
+  if (!e.value) {
+    ClaimResult r;
+    r.text = claim.text;
+    r.path = circuit.source().path();
+    r.loc = claim.loc;
+    r.message = e.why;
+    return r;
+  }
+  ClaimResult r = compare_claim(claim, circuit.source().path(), *e.value);
+  if (!e.note.empty()) r.message += "; " + e.note;
+  return r;
+}
+
+}  // namespace
+
 std::vector<ClaimResult> evaluate_claims(const Circuit& circuit, const Solution& solution) {
   std::vector<ClaimResult> results;
   ClaimEvaluator evaluator(circuit, solution);
-  for (const Claim& claim : circuit.claims()) {
-    Evaluation e = evaluator.evaluate(claim);
-    if (!e.value) {
-      ClaimResult r;
-      r.text = claim.text;
-      r.path = circuit.source().path();
-      r.loc = claim.loc;
-      r.message = e.why;
-      results.push_back(std::move(r));
-      continue;
-    }
-    ClaimResult r = compare_claim(claim, circuit.source().path(), *e.value);
-    if (!e.note.empty()) r.message += "; " + e.note;
-    results.push_back(std::move(r));
-  }
+  for (const Claim& claim : circuit.claims()) results.push_back(claim_result(evaluator, circuit, claim));
   return results;
+}
+
+CircuitVerdicts evaluate_verdicts(const Circuit& circuit, const Solution& solution) {
+  CircuitVerdicts v;
+  ClaimEvaluator evaluator(circuit, solution);
+  for (const Claim& claim : circuit.claims()) v.claims.push_back(claim_result(evaluator, circuit, claim));
+  v.ratings = evaluator.ratings();
+  return v;
 }
 
 std::vector<ClaimResult> unevaluated_claims(const Circuit& circuit, const std::string& reason) {

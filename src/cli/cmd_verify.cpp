@@ -7,6 +7,7 @@
 #include "netfold/report.hpp"
 #include "netfold/units.hpp"
 #include "netfold/verify.hpp"
+#include "netfold/worst.hpp"
 
 namespace netfold::cli {
 
@@ -35,9 +36,18 @@ Command register_verify(CLI::App& app) {
     std::string json = args->json.empty() ? "" : verify_json(report);
     std::ostringstream text;
     write_verify_text(text, report, solution);
+    // One verdict per file in every command: an exceeded rating fails verify too.
+    std::vector<RatingCheck> ratings = worst_case_ratings(circuit, circuit.sweeps());
+    bool exceeded = false;
+    for (const auto& r : ratings)
+      if (r.exceeded) {
+        if (!exceeded) text << "\nratings exceeded\n";
+        text << "  " << rating_line(circuit, r) << "\n";
+        exceeded = true;
+      }
     if (!args->json.empty()) write_output(args->json, json, std::cout, "--json");
     if (args->json != "-") std::cout << text.str();
-    return report.passed ? 0 : static_cast<int>(ExitCode::check_failed);
+    return report.passed && !exceeded ? 0 : static_cast<int>(ExitCode::check_failed);
   };
 }
 

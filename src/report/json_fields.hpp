@@ -8,7 +8,7 @@
 #include <nlohmann/json.hpp>
 
 #include "netfold/netlist.hpp"
-#include "netfold/report.hpp"
+#include "netfold/ratings.hpp"
 
 namespace netfold::detail {
 
@@ -31,7 +31,12 @@ inline nlohmann::json json_ratings(const Circuit& c, const std::vector<RatingChe
                    {"actual", json_number(r.actual)},
                    {"used_percent", json_number(r.used_percent)},
                    {"exceeded", r.exceeded},
-                   {"worst_case", r.worst_case}});
+                   {"worst_case", r.worst_case},
+                   {"where", r.where},
+                   {"worst_at", r.worst_at ? nlohmann::json{{"target", r.worst_target},
+                                                            {"at", json_number(*r.worst_at)},
+                                                            {"at_unit", r.worst_at_unit}}
+                                           : nlohmann::json(nullptr)}});
   return out;
 }
 

@@ -8,6 +8,7 @@
 #include "report/json_fields.hpp"
 #include "netfold/report.hpp"
 #include "netfold/units.hpp"
+#include "netfold/worst.hpp"
 
 namespace netfold {
 
@@ -24,72 +25,7 @@ nlohmann::json phasors_json(const Drive& d) {
   return arr;
 }
 
-Observable element_observable(const Circuit& c, ElementId id, ObservableKind kind) {
-  Observable o;
-  o.kind = kind;
-  o.element = id;
-  o.text = c.element(id).name + (kind == ObservableKind::element_voltage ? ".v" : ".i");
-  o.loc = c.element(id).loc;
-  return o;
-}
-
 }  // namespace
-
-std::string_view rating_quantity(RatingKind kind) {
-  switch (kind) {
-    case RatingKind::peak_voltage: return "peak voltage";
-    case RatingKind::peak_current: return "peak current";
-    case RatingKind::mean_power: return "mean power";
-    case RatingKind::energy: return "energy";
-    case RatingKind::i2t: return "I²t";
-  }
-  return "";
-}
-
-std::string_view rating_unit(RatingKind kind) {
-  switch (kind) {
-    case RatingKind::peak_voltage: return "V";
-    case RatingKind::peak_current: return "A";
-    case RatingKind::mean_power: return "W";
-    case RatingKind::energy: return "J";
-    case RatingKind::i2t: return "A²s";
-  }
-  return "";
-}
-
-double rating_stress(const Solution& solution, ElementId id, RatingKind kind) {
-  const Circuit& c = solution.circuit();
-  switch (kind) {
-    case RatingKind::peak_voltage:
-      return compute_figures(solution, element_observable(c, id, ObservableKind::element_voltage)).peak;
-    case RatingKind::peak_current:
-      return compute_figures(solution, element_observable(c, id, ObservableKind::element_current)).peak;
-    case RatingKind::mean_power: return element_mean_power(solution, id);
-    case RatingKind::energy: return element_energy(solution, id);
-    case RatingKind::i2t: return element_i2t(solution, id);
-  }
-  return 0.0;
-}
-
-std::vector<RatingCheck> check_ratings(const Solution& solution) {
-  std::vector<RatingCheck> out;
-  const auto& el = solution.circuit().elements();
-  for (ElementId id = 0; id < el.size(); ++id)
-    for (const auto& r : el[id].ratings) {
-      RatingCheck rc;
-      rc.element = id;
-      rc.kind = r.kind;
-      rc.quantity = rating_quantity(r.kind);
-      rc.unit = rating_unit(r.kind);
-      rc.rated = r.limit;
-      rc.actual = rating_stress(solution, id, r.kind);
-      rc.used_percent = 100.0 * std::fabs(rc.actual) / r.limit;
-      rc.exceeded = std::fabs(rc.actual) > r.limit;
-      rc.loc = r.loc;
-      out.push_back(rc);
-    }
-  return out;
-}
 
 bool is_hazardous(const Solution& solution, const std::vector<Figures>& figures) {
   for (const auto& e : solution.circuit().elements()) {
@@ -123,7 +59,8 @@ SolveReport build_solve_report(const Solution& solution) {
     t.i2t = element_i2t(solution, id);
     r.totals.push_back(t);
   }
-  r.ratings = check_ratings(solution);
+  r.ratings = solution.circuit().sweeps().empty() ? check_ratings(solution)
+                                                  : worst_case_ratings(solution.circuit(), solution.circuit().sweeps());
   r.hazardous = is_hazardous(solution, r.figures);
   if (r.hazardous) r.warnings.push_back(kHazardCaution);
   for (const auto& w : solution.warnings()) r.warnings.push_back(w);

@@ -215,11 +215,9 @@ void write_solve_text(std::ostream& out, const SolveReport& report) {
                  si(shown(t.energy, t.energy_scale), "J"), si(t.i2t, "A²s"));
   }
   if (!report.ratings.empty()) {
-    fmt::print(out, "\nratings\n");
-    for (const auto& r : report.ratings)
-      fmt::print(out, "  {:<14} {:<13} {:>11} of {:>11} {:>7}  {}{}\n", c.element(r.element).name, r.quantity,
-                 si(r.actual, r.unit), si(r.rated, r.unit), fmt::format("{:.1f} %", r.used_percent),
-                 r.exceeded ? "EXCEEDED" : "ok", r.worst_case ? " (worst case over the sweeps)" : "");
+    const bool worst = std::any_of(report.ratings.begin(), report.ratings.end(), [](const RatingCheck& r) { return r.worst_case; });
+    fmt::print(out, "\nratings{}\n", worst ? " (worst case over the declared sweeps)" : "");
+    for (const auto& r : report.ratings) fmt::print(out, "  {}\n", rating_line(c, r));
   }
   if (report.warnings.size() > (report.hazardous ? 1u : 0u)) {
     fmt::print(out, "\nwarnings\n");

@@ -22,14 +22,6 @@ const char* const kHazardCaution =
 
 namespace {
 
-// A switching instant: a switch event or a step of a source.
-struct Event {
-  double time = 0.0;
-  ElementId element = kNone;
-  bool closes = false;  // switches
-  double step = 0.0;    // steps: the level change
-};
-
 std::string positions_text(const Circuit& c, const SwitchPositions& p) {
   std::string out;
   std::size_t k = 0;
@@ -79,19 +71,20 @@ std::vector<ElementId> all_but(const std::vector<ElementId>& ids, ElementId stor
 }
 
 // A switch that closes at the start of the segment and so creates the fault.
-ElementId switch_closing_at(const Circuit& c, const std::vector<ElementId>& ids, double t) {
+ElementId switch_closing_at(const AppliedScenario& applied, const std::vector<ElementId>& ids, double t) {
   for (ElementId id : ids) {
-    const Element& e = c.element(id);
+    const Element& e = applied.circuit().element(id);
     if (e.kind != ElementKind::switch_) continue;
-    for (const auto& ev : e.events)
+    for (const auto& ev : applied.events(id))
       if (ev.closes && ev.time == t) return id;
   }
   return kNone;
 }
 
 // Turns a structural problem of a segment's network into a message in circuit terms.
-[[noreturn]] void report_problem(const Circuit& c, const TopologyProblem& p, const std::string& where,
+[[noreturn]] void report_problem(const AppliedScenario& applied, const TopologyProblem& p, const std::string& where,
                                  ElementId storage, double state, double segment_start) {
+  const Circuit& c = applied.circuit();
   using Kind = TopologyProblem::Kind;
   const auto& el = c.elements();
   switch (p.kind) {
@@ -109,7 +102,7 @@ ElementId switch_closing_at(const Circuit& c, const std::vector<ElementId>& ids,
       ElementId first = p.elements.front();
       for (ElementId id : p.elements)
         if (el[id].kind != ElementKind::switch_) first = std::min(first, id);
-      ElementId closing = switch_closing_at(c, p.elements, segment_start);
+      ElementId closing = switch_closing_at(applied, p.elements, segment_start);
       if (closing != kNone && !only_switches) {
         std::vector<ElementId> sources;
         for (ElementId id : p.elements)
@@ -312,6 +305,77 @@ double level_before_zero(const Waveform& w) {
   return v;
 }
 
+// The format's default window: 0 .. last event + max(8 τ of the last segment, 5 periods of the
+// slowest sinusoid). The numeric part of the schedule: it needs the last segment's network.
+Window default_window(const AppliedScenario& applied, NetworkCache& cache, ElementId storage, double tau_scale,
+                      std::vector<std::string>& warnings) {
+  const Circuit& c = applied.circuit();
+  const auto& el = c.elements();
+  const std::vector<ScheduledEvent> events = list_events(applied);
+  const double last_event = events.empty() ? 0.0 : events.back().time;
+  double span = 0.0;
+  if (storage != kNone) {
+    const ReducedNetwork& net = cache.get(positions_at(applied, last_event));
+    bool held = false;
+    for (const auto& p : net.system().problems()) held |= p.kind == TopologyProblem::Kind::inductor_open;
+    if (!held && net.system().problems().empty() && net.rcond() >= kSingularRcond) {
+      Equivalent eq = storage_equivalent(c, net, storage);
+      if (eq.rate != 0.0) span = 8.0 / std::fabs(eq.rate) * tau_scale;
+    }
+  }
+  const double tau_span = span;
+  double f = slowest_frequency(c);
+  if (f > 0.0) span = std::max(span, 5.0 / f);
+  if (span > kMaxDefaultWindow) {
+    // Which element set it: the storage element (8 τ) or the slowest sinusoid (5 periods).
+    SourceLoc loc = storage != kNone ? el[storage].loc : SourceLoc{1, 1};
+    std::string why = fmt::format("8 τ of {}", storage != kNone ? el[storage].name : "");
+    if (span > tau_span)
+      for (const auto& e : el)
+        for (const auto& w : e.waveform.sinusoids)
+          if (w.amplitude != 0.0 && w.frequency == f) {
+            loc = e.loc;
+            why = fmt::format("5 periods of {} at {}", e.name, format_si(f, "Hz"));
+          }
+    fail(c, loc,
+         fmt::format("the default window would be 0 s .. {} ({}), longer than 1e9 s (about 30 years): check the "
+                     "value, or declare a 'window' for the time of interest",
+                     format_si(last_event + span, "s"), why));
+  }
+  if (span == 0.0) {
+    span = last_event > 0.0 ? last_event : 1.0;
+    warnings.push_back(fmt::format("the circuit has no finite time constant and no sinusoid to size the "
+                                   "window; it was set to 0 .. {}: set 'window' to choose",
+                                   format_si(last_event + span, "s")));
+  }
+  return Window{0.0, last_event + span, {}};
+}
+
+// Refuses a resolution that gives one row or too many; warns where it aliases a sinusoid.
+void check_resolution(const Circuit& c, const Window& window, double resolution, std::vector<std::string>& warnings) {
+  if (c.resolution() && *c.resolution() > window.to - window.from) {
+    SourceLoc loc = c.window() ? c.window()->loc : c.resolution_loc();
+    fail(c, loc,
+         fmt::format("the resolution {} is longer than the window {} .. {}; the CSV would hold one row: make the "
+                     "window longer or the resolution shorter",
+                     format_si(*c.resolution(), "s"), format_si(window.from, "s"), format_si(window.to, "s")));
+  }
+  const double samples = (window.to - window.from) / resolution;
+  if (samples > kMaxSamples) {
+    SourceLoc loc = c.resolution() ? c.resolution_loc() : (c.window() ? c.window()->loc : SourceLoc{1, 1});
+    fail(c, loc,
+         fmt::format("the resolution {} over the window {} .. {} asks for {:.3g} samples, more than the limit of "
+                     "{:.0f}; choose a resolution of at least {}",
+                     format_si(resolution, "s"), format_si(window.from, "s"), format_si(window.to, "s"), samples,
+                     kMaxSamples, format_si((window.to - window.from) / kMaxSamples, "s")));
+  }
+  if (double f_fast = fastest_frequency(c); f_fast > 0.0 && resolution > 0.25 / f_fast)
+    warnings.push_back(fmt::format("the resolution {} is coarser than a quarter period of the {} sinusoid: the CSV "
+                                   "and the plot cannot show it (they alias it); the figures come from the closed "
+                                   "form and are exact; set 'resolution' to at most {} to see the waveform",
+                                   format_si(resolution, "s"), format_si(f_fast, "Hz"), format_si(0.25 / f_fast, "s")));
+}
+
 }  // namespace
 
 const ReducedNetwork& Solution::network(const Segment& segment) const {
@@ -323,13 +387,10 @@ Drive Solution::drive_of(const std::vector<double>& c, const Segment& segment) c
   for (std::size_t k = 0; k < sources_.size(); ++k) {
     double coef = c.at(k + 1);
     if (coef == 0.0) continue;
-    const Element& src = circuit_->element(sources_[k]);
-    d.dc += coef * (segment.number == 0 ? level_before_zero(src.waveform) : src.waveform.level_at(segment.from));
-    double shift = 0.0;
-    if (options_.source_phase && options_.source_phase->first == sources_[k] && !src.waveform.sinusoids.empty())
-      shift = options_.source_phase->second - src.waveform.sinusoids.front().phase;
-    for (const auto& s : src.waveform.sinusoids)
-      d.add_phasor(s.frequency, coef * std::polar(s.amplitude, s.phase + shift));
+    // The waveform under the scenario: a swept phase is already in it (apply_scenario).
+    const Waveform& w = applied_.waveform(sources_[k]);
+    d.dc += coef * (segment.number == 0 ? level_before_zero(w) : w.level_at(segment.from));
+    for (const auto& s : w.sinusoids) d.add_phasor(s.frequency, coef * std::polar(s.amplitude, s.phase));
   }
   return d;
 }
@@ -444,121 +505,30 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
   check_value_span(c);
   const double storage_value = s.storage_ != kNone ? el[s.storage_].value : 1.0;
 
-  // Switching instants, with a swept first `closes` moved.
-  std::vector<Event> events;
-  for (ElementId i = 0; i < el.size(); ++i) {
-    const Element& e = el[i];
-    bool first_closes_seen = false;
-    for (const auto& ev : e.events) {
-      double t = ev.time;
-      if (ev.closes && !first_closes_seen) {
-        first_closes_seen = true;
-        if (options.first_closes && options.first_closes->first == i) t = options.first_closes->second;
-      }
-      events.push_back({t, i, ev.closes, 0.0});
-    }
-    for (const auto& st : e.waveform.steps)
-      if (st.time > 0.0) events.push_back({st.time, i, false, st.level});
-  }
-  std::stable_sort(events.begin(), events.end(), [](const Event& a, const Event& b) { return a.time < b.time; });
+  // The scenario, applied once: every later step reads the effective waveforms and events.
+  s.applied_ = apply_scenario(c, options.scenario);
 
-  auto positions_at = [&](double t) {
-    SwitchPositions p = positions_before_zero(c);
-    std::size_t k = 0;
-    for (ElementId i = 0; i < el.size(); ++i) {
-      if (el[i].kind != ElementKind::switch_) continue;
-      bool first_closes_seen = false;
-      for (const auto& ev : el[i].events) {
-        double te = ev.time;
-        if (ev.closes && !first_closes_seen) {
-          first_closes_seen = true;
-          if (options.first_closes && options.first_closes->first == i) te = options.first_closes->second;
-        }
-        if (te <= t) p.closed[k] = ev.closes;
-      }
-      ++k;
-    }
-    return p;
-  };
-
-  // The window: declared, or 0 .. last event + max(8 τ of the last segment, 5 slowest periods).
+  // The window (declared, or the default rule, which needs the last segment's τ), then the
+  // schedule over it.
   if (options.window || c.window()) {
     s.window_ = options.window ? *options.window : *c.window();
     s.window_default_ = false;
   } else {
-    double last_event = events.empty() ? 0.0 : events.back().time;
-    double span = 0.0;
-    if (s.storage_ != kNone) {
-      const ReducedNetwork& net = s.cache_->get(positions_at(last_event));
-      bool held = false;
-      for (const auto& p : net.system().problems()) held |= p.kind == TopologyProblem::Kind::inductor_open;
-      if (!held && net.system().problems().empty() && net.rcond() >= kSingularRcond) {
-        Equivalent eq = storage_equivalent(c, net, s.storage_);
-        if (eq.rate != 0.0) span = 8.0 / std::fabs(eq.rate) * seams::engine_faults().tau_scale;
-      }
-    }
-    const double tau_span = span;
-    double f = slowest_frequency(c);
-    if (f > 0.0) span = std::max(span, 5.0 / f);
-    if (span > kMaxDefaultWindow) {
-      // Which element set it: the storage element (8 τ) or the slowest sinusoid (5 periods).
-      SourceLoc loc = s.storage_ != kNone ? el[s.storage_].loc : SourceLoc{1, 1};
-      std::string why = fmt::format("8 τ of {}", s.storage_ != kNone ? el[s.storage_].name : "");
-      if (span > tau_span)
-        for (const auto& e : el)
-          for (const auto& w : e.waveform.sinusoids)
-            if (w.amplitude != 0.0 && w.frequency == f) {
-              loc = e.loc;
-              why = fmt::format("5 periods of {} at {}", e.name, format_si(f, "Hz"));
-            }
-      fail(c, loc,
-           fmt::format("the default window would be 0 s .. {} ({}), longer than 1e9 s (about 30 years): check the "
-                       "value, or declare a 'window' for the time of interest",
-                       format_si(last_event + span, "s"), why));
-    }
-    if (span == 0.0) {
-      span = last_event > 0.0 ? last_event : 1.0;
-      s.warnings_.push_back(fmt::format("the circuit has no finite time constant and no sinusoid to size the "
-                                        "window; it was set to 0 .. {}: set 'window' to choose",
-                                        format_si(last_event + span, "s")));
-    }
-    s.window_ = Window{0.0, last_event + span, {}};
+    s.window_ = default_window(s.applied_, *s.cache_, s.storage_, seams::engine_faults().tau_scale, s.warnings_);
   }
+  s.schedule_ = build_schedule(s.applied_, s.window_);
   const double t_end = s.window_.to;
-  s.resolution_ = c.resolution().value_or((s.window_.to - s.window_.from) / 4000.0);
-  if (c.resolution() && *c.resolution() > s.window_.to - s.window_.from) {
-    SourceLoc loc = c.window() ? c.window()->loc : c.resolution_loc();
-    fail(c, loc,
-         fmt::format("the resolution {} is longer than the window {} .. {}; the CSV would hold one row: make the "
-                     "window longer or the resolution shorter",
-                     format_si(*c.resolution(), "s"), format_si(s.window_.from, "s"), format_si(s.window_.to, "s")));
-  }
-  const double samples = (s.window_.to - s.window_.from) / s.resolution_;
-  if (samples > kMaxSamples) {
-    SourceLoc loc = c.resolution() ? c.resolution_loc() : (c.window() ? c.window()->loc : SourceLoc{1, 1});
-    fail(c, loc,
-         fmt::format("the resolution {} over the window {} .. {} asks for {:.3g} samples, more than the limit of "
-                     "{:.0f}; choose a resolution of at least {}",
-                     format_si(s.resolution_, "s"), format_si(s.window_.from, "s"), format_si(s.window_.to, "s"),
-                     samples, kMaxSamples, format_si((s.window_.to - s.window_.from) / kMaxSamples, "s")));
-  }
-  if (double f_fast = fastest_frequency(c); f_fast > 0.0 && s.resolution_ > 0.25 / f_fast)
-    s.warnings_.push_back(fmt::format("the resolution {} is coarser than a quarter period of the {} sinusoid: the CSV "
-                                      "and the plot cannot show it (they alias it); the figures come from the closed "
-                                      "form and are exact; set 'resolution' to at most {} to see the waveform",
-                                      format_si(s.resolution_, "s"), format_si(f_fast, "Hz"),
-                                      format_si(0.25 / f_fast, "s")));
-  for (const auto& ev : events) {
-    if (ev.time < t_end) continue;
+  s.resolution_ = s.schedule_.resolution;
+  check_resolution(c, s.window_, s.resolution_, s.warnings_);
+  for (const auto& ev : s.schedule_.ignored_events())
     s.warnings_.push_back(fmt::format("{}'s event at {} is at or after the end of the window ({}); it is ignored",
                                       el[ev.element].name, format_si(ev.time, "s"), format_si(t_end, "s")));
-  }
 
   // The state at t = 0−.
   if (s.storage_ == kNone) {
     s.initial_source_ = InitialStateSource::none;
-  } else if (options.initial_state) {
-    s.initial_state_ = *options.initial_state;
+  } else if (auto given = s.applied_.initial_state(s.storage_)) {
+    s.initial_state_ = *given;
     s.initial_source_ = InitialStateSource::option;
   } else if (el[s.storage_].initial) {
     s.initial_state_ = *el[s.storage_].initial;
@@ -600,44 +570,32 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
     }
   }
 
-  // Segment boundaries: 0, every event inside the window, the window's end.
-  std::vector<double> bounds{0.0};
-  for (const auto& ev : events)
-    if (ev.time > 0.0 && ev.time < t_end && ev.time != bounds.back()) bounds.push_back(ev.time);
-  bounds.push_back(t_end);
-
   double state = s.initial_state_;
   double state_scale = std::fabs(state);
-  for (std::size_t k = 0; k + 1 < bounds.size(); ++k) {
+  for (std::size_t k = 0; k < s.schedule_.segments.size(); ++k) {
+    const ScheduledSegment& planned = s.schedule_.segments[k];
     Segment seg;
     seg.number = static_cast<int>(k + 1);
-    seg.from = bounds[k];
-    seg.to = bounds[k + 1];
-    seg.positions = positions_at(seg.from);
-    for (const auto& ev : events) {
-      if (ev.time != seg.from && !(k == 0 && ev.time <= 0.0)) continue;
-      if (el[ev.element].kind == ElementKind::switch_)
-        seg.changes.push_back(fmt::format("{} {}", el[ev.element].name, ev.closes ? "closes" : "opens"));
-      else
-        seg.changes.push_back(fmt::format("{} steps by {}", el[ev.element].name,
-                                          format_si(ev.step, el[ev.element].kind == ElementKind::voltage_source ? "V" : "A")));
-    }
+    seg.from = planned.from;
+    seg.to = planned.to;
+    seg.positions = planned.positions;
+    for (const auto& ev : planned.changes) seg.changes.push_back(event_text(c, ev));
     seg.state_start = state;
     const std::string where = segment_text(c, seg);
 
     const ReducedNetwork* net = &s.cache_->get(seg.positions);
     for (const auto& p : net->system().problems()) {
-      if (p.kind != TopologyProblem::Kind::inductor_open) report_problem(c, p, where, s.storage_, state, seg.from);
+      if (p.kind != TopologyProblem::Kind::inductor_open) report_problem(s.applied_, p, where, s.storage_, state, seg.from);
       // The current may stay at zero: then it is held there, else it would have to jump.
       if (std::fabs(state) > 1e-12 * state_scale || (state != 0.0 && state_scale == 0.0))
-        report_problem(c, p, where, s.storage_, state, seg.from);
+        report_problem(s.applied_, p, where, s.storage_, state, seg.from);
       seg.mode = PortMode::held_at_zero;
     }
     if (seg.mode == PortMode::held_at_zero) {
       state = 0.0;
       seg.state_start = 0.0;
       net = &s.cache_->get(seg.positions, seg.mode);
-      for (const auto& p : net->system().problems()) report_problem(c, p, where, s.storage_, state, seg.from);
+      for (const auto& p : net->system().problems()) report_problem(s.applied_, p, where, s.storage_, state, seg.from);
     }
     if (net->rcond() < kSingularRcond) report_singular(c, *net, where);
     seg.rcond = net->rcond();
@@ -879,23 +837,39 @@ double element_i2t(const Solution& solution, ElementId id) {
   return std::max(0.0, finite_or_refuse(solution, id, sum, "I²t"));
 }
 
-double element_mean_power(const Solution& solution, ElementId id) {
+double element_mean_power(const Solution& solution, ElementId id, int* segment) {
   const Circuit& c = solution.circuit();
   const Window& win = solution.window();
-  if (lowest_frequency(c) > 0.0) {
-    auto v = solution.pieces(element_observable(c, id, ObservableKind::element_voltage));
-    auto i = solution.pieces(element_observable(c, id, ObservableKind::element_current));
-    auto vs = v.back().f.steady_state(), is = i.back().f.steady_state();
+  auto v = solution.pieces(element_observable(c, id, ObservableKind::element_voltage));
+  auto i = solution.pieces(element_observable(c, id, ObservableKind::element_current));
+  // Sustained dissipation (spec v2, "Ratings"): the largest over the segments of each one's
+  // steady-state mean, whatever the window, so that a resistor that dissipates only while a
+  // contact is closed is judged by that dissipation, not by the last segment or the window.
+  std::optional<double> best;
+  int best_segment = 0;
+  for (std::size_t k = 0; k < v.size(); ++k) {
+    double p = 0.0;
+    auto vs = v[k].f.steady_state(), is = i[k].f.steady_state();
     if (vs && is) {
       // Mean of a product of sinusoids: DC·DC + ½·Σ Re(V·conj(I)) at equal frequencies.
-      double p = vs->dc * is->dc;
+      p = vs->dc * is->dc;
       for (const auto& pv : vs->phasors)
         for (const auto& pi : is->phasors)
           if (pv.frequency == pi.frequency) p += 0.5 * (pv.value * std::conj(pi.value)).real();
-      return finite_or_refuse(solution, id, p, "mean power");
+    } else {
+      // No steady state (a ramp, a growing response): the mean over the segment's part of
+      // the window, where there is one.
+      double a = std::max(win.from, v[k].t0()), b = std::min(win.to, v[k].t1());
+      if (!(a < b)) continue;
+      p = integral_of_product(v[k].f, i[k].f, a, b) / (b - a);
+    }
+    if (!best || p > *best) {
+      best = p;
+      best_segment = static_cast<int>(k + 1);
     }
   }
-  return element_energy(solution, id) / (win.to - win.from);
+  if (segment) *segment = best ? best_segment : 0;
+  return finite_or_refuse(solution, id, best.value_or(0.0), "mean power");
 }
 
 }  // namespace netfold

@@ -127,7 +127,7 @@ InitialState find_initial_state(const Solution& s, Configurations& configs, cons
   if (storage_id == kNone) return out;
   const Element& storage = s.circuit().element(storage_id);
   const std::string unit = unit_of_state(storage);
-  const std::optional<double> given = s.options().initial_state ? s.options().initial_state : storage.initial;
+  const std::optional<double> given = given_initial_state(s, storage_id);
   if (given) {
     out.value = *given / scale;
     out.method = InitialStateMethod::given;

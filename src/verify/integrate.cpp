@@ -116,7 +116,7 @@ double input_scale(const Solution& s, const std::vector<SourceSignal>& signals) 
   double m = 0.0;
   for (const auto& sig : signals) m = std::max(m, sig.magnitude());
   if (const ElementId storage = storage_element(s.circuit()); storage != kNone) {
-    const auto& initial = s.options().initial_state ? s.options().initial_state : s.circuit().element(storage).initial;
+    const auto initial = given_initial_state(s, storage);
     if (initial) m = std::max(m, std::fabs(*initial));
   }
   if (!(m > 0.0) || !std::isfinite(m)) return 1.0;

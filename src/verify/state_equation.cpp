@@ -1,5 +1,7 @@
 #include "verify/state_equation.hpp"
 
+#include "netfold/scenario.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <numbers>
@@ -66,7 +68,7 @@ double SourceSignal::sinusoids_at(double t, const std::vector<double>* only) con
   double v = 0.0;
   for (const auto& s : waveform->sinusoids) {
     if (only && std::find(only->begin(), only->end(), s.frequency) == only->end()) continue;
-    v += s.amplitude * std::cos(kTwoPi * s.frequency * t + s.phase + shift);
+    v += s.amplitude * std::cos(kTwoPi * s.frequency * (t + time_shift) + s.phase);
   }
   return v * inv_scale;
 }
@@ -93,12 +95,24 @@ std::vector<SourceSignal> source_signals(const Solution& s, double inv_scale) {
   for (ElementId id : independent_sources(s.circuit())) {
     const Element& e = s.circuit().element(id);
     SourceSignal sig{&e.waveform, 0.0, inv_scale};
-    const auto& phase = s.options().source_phase;
-    if (phase && phase->first == id && !e.waveform.sinusoids.empty())
-      sig.shift = phase->second - e.waveform.sinusoids.front().phase;
+    // The scenario's phase is the first sinusoid's `phase` as written (spec v2): read here on
+    // the numerical path's own terms, as a shift of the source's time origin by Δ/(2π·f₁), so
+    // that every harmonic moves with it and the DC part and steps stay.
+    for (const SourcePhase& sp : s.options().scenario.source_phases)
+      if (sp.source == id && !e.waveform.sinusoids.empty()) {
+        const Sinusoid& first = e.waveform.sinusoids.front();
+        sig.time_shift = (sp.phase - written_phase(s.circuit(), id)) / (kTwoPi * first.frequency);
+      }
     out.push_back(sig);
   }
   return out;
+}
+
+std::optional<double> given_initial_state(const Solution& s, ElementId storage) {
+  std::optional<double> given = s.circuit().element(storage).initial;
+  for (const ResidualState& r : s.options().scenario.residual_states)
+    if (r.element == storage) given = r.value;
+  return given;
 }
 
 std::vector<double> source_frequencies(const std::vector<SourceSignal>& signals) {

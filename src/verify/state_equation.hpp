@@ -30,7 +30,7 @@ ElementId storage_element(const Circuit& circuit);
 // One source's waveform as the numerical path sees it, divided by the input scale.
 struct SourceSignal {
   const Waveform* waveform = nullptr;
-  double shift = 0.0;        // rad: SolveOptions::source_phase
+  double time_shift = 0.0;   // s: the scenario's phase moves the sinusoids' time origin by this
   double inv_scale = 1.0;    // 1/S, a power of two
 
   // The sinusoids at t; with `only`, just those at these frequencies (Hz).
@@ -45,6 +45,9 @@ struct SourceSignal {
 
 // The schedule's sources in input order, with the scenario's phase applied and 1/S.
 std::vector<SourceSignal> source_signals(const Solution& schedule, double inv_scale);
+
+// The state at t = 0− that the scenario or the storage element's `initial` gives, if any.
+std::optional<double> given_initial_state(const Solution& schedule, ElementId storage);
 
 // The distinct frequencies (Hz) of every sinusoid with a non-zero amplitude, ascending.
 std::vector<double> source_frequencies(const std::vector<SourceSignal>& signals);

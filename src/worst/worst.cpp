@@ -40,7 +40,11 @@ ClosesSlot closes_slot(const Element& e) {
   return slot;
 }
 
-void validate_sweep(const Circuit& c, const Sweep& sw) {
+// A sweep range the circuit cannot take is refused at the sweep's line. A closing time at or
+// past the end of a declared window would leave the switch open for the whole window at part
+// of the range, and that part would be scored as "never closes": refused rather than scored.
+// (A default window is lengthened instead; see search_sweep.)
+void validate_sweep(const Circuit& c, const Sweep& sw, const Solution& nominal) {
   if (!(sw.from < sw.to)) fail(c, sw.loc, fmt::format("the sweep of {} needs FROM < TO", sw.text));
   if (sw.step && !(*sw.step > 0.0)) fail(c, sw.loc, fmt::format("the sweep of {} needs a positive step", sw.text));
   if (sw.target != SweepTarget::switch_closes) return;
@@ -51,17 +55,38 @@ void validate_sweep(const Circuit& c, const Sweep& sw) {
                      "(the switch's neighbouring events, and t = 0); narrow the range",
                      c.element(sw.element).name, format_si(sw.from, "s"), format_si(sw.to, "s"),
                      format_si(std::max(0.0, slot.previous), "s"), format_si(slot.next, "s")));
+  const Window& w = nominal.window();
+  if (!nominal.window_is_default() && sw.to >= w.to)
+    fail(c, sw.loc,
+         fmt::format("the sweep moves {}'s first 'closes' up to {}, at or past the end of the declared window "
+                     "({} .. {}): from {} on, {} would not close within the window; end the range before {} or "
+                     "lengthen the window",
+                     c.element(sw.element).name, format_si(sw.to, "s"), format_si(w.from, "s"), format_si(w.to, "s"),
+                     format_si(w.to, "s"), c.element(sw.element).name, format_si(w.to, "s")));
 }
 
 SolveOptions options_for(const Sweep& sw, const Window& window, double x) {
   SolveOptions o;
   o.window = window;
-  switch (sw.target) {
-    case SweepTarget::source_phase: o.source_phase = std::make_pair(sw.element, x); break;
-    case SweepTarget::storage_initial: o.initial_state = x; break;
-    case SweepTarget::switch_closes: o.first_closes = std::make_pair(sw.element, x); break;
-  }
+  o.scenario = scenario_at(sw, x);
   return o;
+}
+
+// Runs f (a solve, a measure) at one argument of a sweep. A circuit that solves at its declared
+// values but not at this argument is the sweep's doing: the error is given at the sweep's line,
+// with the argument and the original message (which names the element at fault).
+template <typename F>
+auto at_argument(const Circuit& c, const Sweep& sw, double x, F&& f) -> decltype(f()) {
+  try {
+    return f();
+  } catch (const InputError& e) {
+    const Diagnostic* d = e.diagnostics().empty() ? nullptr : &e.diagnostics().front();
+    std::string original = d ? d->message : std::string(e.what());
+    std::string line = d && d->loc.line > 0 ? fmt::format(" (line {})", d->loc.line) : "";
+    fail(c, sw.loc,
+         fmt::format("the sweep of {} reaches {}, where the circuit cannot be solved: {}{}; narrow the range",
+                     sw.text, sweep_argument_text(c, sw, x), original, line));
+  }
 }
 
 double fastest_frequency(const Circuit& c) {
@@ -95,16 +120,19 @@ std::pair<double, double> golden_maximum(F&& f, double a, double b, double tol) 
   return fc >= fd ? std::make_pair(c, fc) : std::make_pair(d, fd);
 }
 
-std::string argument_text(const Sweep& sw, double x) {
+}  // namespace
+
+std::string sweep_argument_text(const Circuit& c, const Sweep& sw, double x, int digits) {
   switch (sw.target) {
-    case SweepTarget::source_phase: return format_si(x * kRadToDeg, "°", 5);
-    case SweepTarget::storage_initial: return format_si(x, "", 5);
-    case SweepTarget::switch_closes: return format_si(x, "s", 5);
+    case SweepTarget::source_phase: return format_si(x * kRadToDeg, "°", digits);
+    case SweepTarget::storage_initial:
+      return format_si(x, c.element(sw.element).kind == ElementKind::capacitor ? "V" : "A", digits);
+    case SweepTarget::switch_closes: return format_si(x, "s", digits);
   }
-  return "";
+  return format_si(x, "", digits);
 }
 
-const char* argument_unit(const Sweep& sw, const Circuit& c) {
+const char* sweep_argument_unit(const Circuit& c, const Sweep& sw) {
   switch (sw.target) {
     case SweepTarget::source_phase: return "rad";
     case SweepTarget::storage_initial: return c.element(sw.element).kind == ElementKind::capacitor ? "V" : "A";
@@ -112,8 +140,6 @@ const char* argument_unit(const Sweep& sw, const Circuit& c) {
   }
   return "";
 }
-
-}  // namespace
 
 std::vector<double> sweep_grid(const Sweep& sw, const Solution& nominal) {
   double range = sw.to - sw.from;
@@ -134,109 +160,158 @@ std::vector<double> sweep_grid(const Sweep& sw, const Solution& nominal) {
   return grid;
 }
 
-WorstReport find_worst_case(const Circuit& c, const std::vector<Sweep>& sweeps) {
+namespace {
+
+// One sweep's search: the metrics are the peak |y| of each observable (m < n_obs), then the
+// stress of each rating.
+class SweepSearch {
+ public:
+  SweepSearch(const Circuit& c, const Sweep& sw, const Window& window, const std::vector<Observable>& observables,
+              const std::vector<RatingCheck>& ratings, std::shared_ptr<NetworkCache> cache)
+      : c_(c), sw_(sw), window_(window), observables_(observables), ratings_(ratings), cache_(std::move(cache)) {}
+
+  std::size_t metrics() const { return observables_.size() + ratings_.size(); }
+
+  Solution solve_at(double x) const {
+    return at_argument(c_, sw_, x, [&] { return solve(c_, options_for(sw_, window_, x), cache_); });
+  }
+
+  Peak metric(const Solution& s, double x, std::size_t m) const {
+    return at_argument(c_, sw_, x, [&]() -> Peak {
+      if (m < observables_.size()) return find_peak(s, observables_[m]);
+      const RatingCheck& r = ratings_[m - observables_.size()];
+      return {std::fabs(rating_stress(s, r.element, r.kind).value), 0.0};
+    });
+  }
+
+  double value(double x, std::size_t m) const { return metric(solve_at(x), x, m).value; }
+
+  // The worst (largest) and best (smallest) of metric m: every grid point that is a local
+  // extreme (ends included) is refined by golden-section search within its neighbours.
+  SweepExtreme extreme(const std::vector<double>& grid, const std::vector<double>& v, std::size_t m) const {
+    const std::size_t n = grid.size();
+    const double tol = 1e-9 * (sw_.to - sw_.from);
+    SweepExtreme ex;
+    std::size_t imax = 0, imin = 0;
+    for (std::size_t k = 0; k < n; ++k) {
+      if (v[k] > v[imax]) imax = k;
+      if (v[k] < v[imin]) imin = k;
+    }
+    ex.worst = v[imax];
+    ex.worst_at = grid[imax];
+    ex.best = v[imin];
+    ex.best_at = grid[imin];
+    if (n < 2) return ex;
+    for (std::size_t k = 0; k < n; ++k) {
+      const double a = grid[k == 0 ? 0 : k - 1], b = grid[k + 1 == n ? k : k + 1];
+      if ((k == 0 || v[k] >= v[k - 1]) && (k + 1 == n || v[k] >= v[k + 1])) {
+        auto [x, fx] = golden_maximum([&](double xx) { return value(xx, m); }, a, b, tol);
+        if (fx > ex.worst) {
+          ex.worst = fx;
+          ex.worst_at = x;
+        }
+      }
+      if ((k == 0 || v[k] <= v[k - 1]) && (k + 1 == n || v[k] <= v[k + 1])) {
+        auto [x, fx] = golden_maximum([&](double xx) { return -value(xx, m); }, a, b, tol);
+        if (-fx < ex.best) {
+          ex.best = -fx;
+          ex.best_at = x;
+        }
+      }
+    }
+    return ex;
+  }
+
+ private:
+  const Circuit& c_;
+  const Sweep& sw_;
+  Window window_;
+  const std::vector<Observable>& observables_;
+  const std::vector<RatingCheck>& ratings_;
+  std::shared_ptr<NetworkCache> cache_;
+};
+
+SweepResult search_sweep(const Circuit& c, const Sweep& sw, const Solution& nominal,
+                         const std::vector<Observable>& observables, const std::vector<RatingCheck>& ratings,
+                         const std::shared_ptr<NetworkCache>& cache) {
+  validate_sweep(c, sw, nominal);
+  SweepResult result;
+  result.sweep = sw;
+  Window window = nominal.window();
+  if (sw.target == SweepTarget::switch_closes && nominal.window_is_default())
+    window.to += std::max(0.0, sw.to - closes_slot(c.element(sw.element)).nominal);
+  SweepSearch search(c, sw, window, observables, ratings, cache);
+  const std::size_t n_obs = observables.size();
+
+  result.grid = sweep_grid(sw, nominal);
+  const std::size_t n_grid = result.grid.size();
+  std::vector<std::vector<double>> values(search.metrics(), std::vector<double>(n_grid));
+  for (std::size_t k = 0; k < n_grid; ++k) {
+    Solution s = search.solve_at(result.grid[k]);
+    for (std::size_t m = 0; m < search.metrics(); ++m) values[m][k] = search.metric(s, result.grid[k], m).value;
+  }
+  for (std::size_t m = 0; m < search.metrics(); ++m) {
+    SweepExtreme ex = search.extreme(result.grid, values[m], m);
+    Solution at_worst = search.solve_at(ex.worst_at);
+    if (m < n_obs) {
+      const Observable& obs = observables[m];
+      ex.name = obs.text;
+      ex.unit = dimension_symbol(obs.dimension());
+      ex.t_peak = search.metric(at_worst, ex.worst_at, m).time;
+      if (obs.kind != ObservableKind::element_power) ex.steady_peak = compute_figures(at_worst, obs).steady_peak;
+      result.observables.push_back(ex);
+      result.grid_peaks.push_back(values[m]);
+    } else {
+      const RatingCheck& r = ratings[m - n_obs];
+      ex.name = fmt::format("{} {}", c.element(r.element).name, r.quantity);
+      ex.unit = r.unit;
+      ex.where = stress_location(at_worst, r.kind, rating_stress(at_worst, r.element, r.kind));
+      result.ratings.push_back(ex);
+      result.rating_index.push_back(m - n_obs);
+    }
+  }
+  return result;
+}
+
+}  // namespace
+
+WorstReport find_worst_case(const Circuit& c, const std::vector<Sweep>& sweeps, WorstScope scope) {
   auto cache = std::make_shared<NetworkCache>(c);
   Solution nominal = solve(c, {}, cache);
   WorstReport report;
   report.ratings = check_ratings(nominal);
-  const auto& observables = nominal.observables();
-
-  for (const Sweep& sw : sweeps) {
-    validate_sweep(c, sw);
-    SweepResult result;
-    result.sweep = sw;
-    Window window = nominal.window();
-    if (sw.target == SweepTarget::switch_closes && nominal.window_is_default())
-      window.to += std::max(0.0, sw.to - closes_slot(c.element(sw.element)).nominal);
-
-    // Metric m of argument x: the peak |y| of observable m, or the stress of rating m − n_obs.
-    const std::size_t n_obs = observables.size();
-    const std::size_t n_metrics = n_obs + report.ratings.size();
-    auto metric = [&](const Solution& s, std::size_t m) -> Peak {
-      if (m < n_obs) return find_peak(s, observables[m]);
-      const RatingCheck& r = report.ratings[m - n_obs];
-      return {std::fabs(rating_stress(s, r.element, r.kind)), 0.0};
-    };
-    auto evaluate = [&](double x, std::size_t m) { return metric(solve(c, options_for(sw, window, x), cache), m); };
-
-    result.grid = sweep_grid(sw, nominal);
-    const std::size_t n_grid = result.grid.size();
-    std::vector<std::vector<double>> values(n_metrics, std::vector<double>(n_grid));
-    for (std::size_t k = 0; k < n_grid; ++k) {
-      Solution s = solve(c, options_for(sw, window, result.grid[k]), cache);
-      for (std::size_t m = 0; m < n_metrics; ++m) values[m][k] = metric(s, m).value;
-    }
-
-    const double tol = 1e-9 * (sw.to - sw.from);
-    for (std::size_t m = 0; m < n_metrics; ++m) {
-      const auto& v = values[m];
-      SweepExtreme ex;
-      // Worst: refine around every grid point that is a local maximum (ends included).
-      std::size_t imax = 0, imin = 0;
-      for (std::size_t k = 0; k < n_grid; ++k) {
-        if (v[k] > v[imax]) imax = k;
-        if (v[k] < v[imin]) imin = k;
-      }
-      ex.worst = v[imax];
-      ex.worst_at = result.grid[imax];
-      ex.best = v[imin];
-      ex.best_at = result.grid[imin];
-      for (std::size_t k = 0; k < n_grid; ++k) {
-        bool left_ok = k == 0 || v[k] >= v[k - 1];
-        bool right_ok = k + 1 == n_grid || v[k] >= v[k + 1];
-        if (left_ok && right_ok && n_grid > 1) {
-          double a = result.grid[k == 0 ? 0 : k - 1], b = result.grid[k + 1 == n_grid ? k : k + 1];
-          auto [x, fx] = golden_maximum([&](double xx) { return evaluate(xx, m).value; }, a, b, tol);
-          if (fx > ex.worst) {
-            ex.worst = fx;
-            ex.worst_at = x;
-          }
-        }
-        bool left_lo = k == 0 || v[k] <= v[k - 1];
-        bool right_lo = k + 1 == n_grid || v[k] <= v[k + 1];
-        if (left_lo && right_lo && n_grid > 1) {
-          double a = result.grid[k == 0 ? 0 : k - 1], b = result.grid[k + 1 == n_grid ? k : k + 1];
-          auto [x, fx] = golden_maximum([&](double xx) { return -evaluate(xx, m).value; }, a, b, tol);
-          if (-fx < ex.best) {
-            ex.best = -fx;
-            ex.best_at = x;
-          }
-        }
-      }
-      Solution at_worst = solve(c, options_for(sw, window, ex.worst_at), cache);
-      if (m < n_obs) {
-        const Observable& obs = observables[m];
-        ex.name = obs.text;
-        ex.unit = dimension_symbol(obs.dimension());
-        ex.t_peak = metric(at_worst, m).time;
-        if (obs.kind != ObservableKind::element_power) ex.steady_peak = compute_figures(at_worst, obs).steady_peak;
-        result.observables.push_back(ex);
-        result.grid_peaks.push_back(v);
-      } else {
-        const RatingCheck& r = report.ratings[m - n_obs];
-        ex.name = fmt::format("{} {}", c.element(r.element).name, r.quantity);
-        ex.unit = r.unit;
-        result.ratings.push_back(ex);
-        result.rating_index.push_back(m - n_obs);
-      }
-    }
-    report.sweeps.push_back(std::move(result));
-  }
+  const std::vector<Observable> none;
+  const auto& observables = scope == WorstScope::everything ? nominal.observables() : none;
+  for (const Sweep& sw : sweeps)
+    report.sweeps.push_back(search_sweep(c, sw, nominal, observables, report.ratings, cache));
 
   // Ratings: the worst over every sweep is what is rated.
   for (const auto& res : report.sweeps)
     for (std::size_t k = 0; k < res.ratings.size(); ++k) {
       RatingCheck& r = report.ratings[res.rating_index[k]];
-      if (!r.worst_case || res.ratings[k].worst > r.actual) {
-        r.actual = res.ratings[k].worst;
-        r.worst_case = true;
-      }
+      const SweepExtreme& ex = res.ratings[k];
+      if (r.worst_case && !(ex.worst > r.actual)) continue;
+      r.actual = ex.worst;
+      r.worst_case = true;
+      r.where = ex.where;
+      // A figure the sweep does not change (a steady-state power) has no worst argument to name.
+      const bool flat = ex.best >= ex.worst - 1e-9 * std::fabs(ex.worst);
+      r.worst_argument = flat ? fmt::format("the same at every {}", res.sweep.text)
+                              : fmt::format("worst case at {} = {}", res.sweep.text,
+                                            sweep_argument_text(c, res.sweep, ex.worst_at));
+      r.worst_target = res.sweep.text;
+      r.worst_at = ex.worst_at;
+      r.worst_at_unit = sweep_argument_unit(c, res.sweep);
     }
-  for (auto& r : report.ratings) {
-    r.used_percent = 100.0 * std::fabs(r.actual) / r.rated;
-    r.exceeded = std::fabs(r.actual) > r.rated;
-  }
+  for (auto& r : report.ratings) judge_rating(r, r.actual);
   return report;
+}
+
+std::vector<RatingCheck> worst_case_ratings(const Circuit& c, const std::vector<Sweep>& sweeps) {
+  bool rated = false;
+  for (const auto& e : c.elements()) rated |= !e.ratings.empty();
+  if (sweeps.empty() || !rated) return check_ratings(solve(c));
+  return find_worst_case(c, sweeps, WorstScope::ratings_only).ratings;
 }
 
 void write_worst_text(std::ostream& out, const WorstReport& report, const Solution& nominal) {
@@ -248,25 +323,22 @@ void write_worst_text(std::ostream& out, const WorstReport& report, const Soluti
   for (const auto& res : report.sweeps) {
     const Sweep& sw = res.sweep;
     fmt::print(out, "\nsweep {} from {} to {} ({} grid points, worst and best refined to 1e-9 of the range)\n",
-               sw.text, argument_text(sw, sw.from), argument_text(sw, sw.to), res.grid.size());
+               sw.text, sweep_argument_text(c, sw, sw.from), sweep_argument_text(c, sw, sw.to), res.grid.size());
     fmt::print(out, "  {:<16} {:>12} {:>12} {:>11}   {:>12} {:>12}   {:>12}\n", "observable", "worst peak", "at",
                "t_peak", "best peak", "at", "steady peak");
     for (const auto& ex : res.observables)
       fmt::print(out, "  {:<16} {:>12} {:>12} {:>11}   {:>12} {:>12}   {:>12}\n", ex.name,
-                 format_si(ex.worst, ex.unit, 4), argument_text(sw, ex.worst_at), format_si(ex.t_peak, "s", 4),
-                 format_si(ex.best, ex.unit, 4), argument_text(sw, ex.best_at),
+                 format_si(ex.worst, ex.unit, 4), sweep_argument_text(c, sw, ex.worst_at), format_si(ex.t_peak, "s", 4),
+                 format_si(ex.best, ex.unit, 4), sweep_argument_text(c, sw, ex.best_at),
                  ex.steady_peak ? format_si(*ex.steady_peak, ex.unit, 4) : std::string("-"));
     for (const auto& ex : res.ratings)
       fmt::print(out, "  {:<30} worst {:>12} at {:>12}; best {:>12} at {:>12}\n", ex.name,
-                 format_si(ex.worst, ex.unit, 4), argument_text(sw, ex.worst_at), format_si(ex.best, ex.unit, 4),
-                 argument_text(sw, ex.best_at));
+                 format_si(ex.worst, ex.unit, 4), sweep_argument_text(c, sw, ex.worst_at), format_si(ex.best, ex.unit, 4),
+                 sweep_argument_text(c, sw, ex.best_at));
   }
   if (!report.ratings.empty()) {
     fmt::print(out, "\nratings{}\n", report.sweeps.empty() ? "" : " (worst case over the sweeps)");
-    for (const auto& r : report.ratings)
-      fmt::print(out, "  {:<14} {:<13} {:>11} of {:>11} {:>7}  {}\n", c.element(r.element).name, r.quantity,
-                 format_si(r.actual, r.unit, 4), format_si(r.rated, r.unit, 4),
-                 fmt::format("{:.1f} %", r.used_percent), r.exceeded ? "EXCEEDED" : "ok");
+    for (const auto& r : report.ratings) fmt::print(out, "  {}\n", rating_line(c, r));
   }
 }
 
@@ -284,7 +356,7 @@ std::string worst_json(const WorstReport& report, const Circuit& c) {
                           {"best_at", detail::json_number(ex.best_at)},
                           {"steady_peak", ex.steady_peak ? detail::json_number(*ex.steady_peak) : nlohmann::json(nullptr)}};
     }
-    unit = argument_unit(res.sweep, c);
+    unit = sweep_argument_unit(c, res.sweep);
     for (auto& [name, value] : results.items()) value["at_unit"] = unit;
     auto ratings = nlohmann::json::array();
     for (const auto& ex : res.ratings)

@@ -1,0 +1,95 @@
+#pragma once
+/// \file ratings.hpp
+/// Stage "ratings": the stress each rating attribute limits, measured on a solution, and the
+/// comparison with the rated value. Which definition each rating uses is the format's (spec
+/// v2, "Ratings"; docs/ratings.md):
+///
+/// | attribute | kind | stress |
+/// |---|---|---|
+/// | capacitor `rated V` | peak_voltage | peak \|v\| over the window |
+/// | inductor, switch, voltage-source `rated A` | peak_current | peak \|i\| over the window |
+/// | resistor `rated P W` | mean_power | largest steady-state mean power over the segments, whatever the window |
+/// | resistor `pulse-rated E J` | energy | ∫v·i dt over the window |
+/// | switch `rated-i2t X A2s` | i2t | ∫i² dt over the window |
+///
+/// With sweeps declared, the worst case over them is what is rated: worst.hpp searches it
+/// (find_worst_case, worst_case_ratings) with rating_stress as its measure.
+///
+/// Example:
+/// \code
+///   netfold::Solution s = netfold::solve(c);
+///   for (const auto& r : netfold::check_ratings(s))
+///     std::cout << c.element(r.element).name << ' ' << r.quantity << ' ' << r.actual << ' ' << r.where << '\n';
+///   // R_heater mean power 1966.36 segment 1, 0 s .. 100 ms   (netlists/heater_contactor.nf)
+/// \endcode
+
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "netfold/netlist.hpp"
+#include "netfold/solve.hpp"
+
+namespace netfold {
+
+/// The stress a rating limits, with where it occurs.
+struct RatingStress {
+  double value = 0.0;          ///< SI: V, A, W, J or A²s
+  std::optional<double> time;  ///< s: when a peak occurs
+  int segment = 0;             ///< the segment of a mean-power figure (from 1; 0 when none)
+};
+
+/// A rating compared with the solved (or worst-case) stress.
+struct RatingCheck {
+  ElementId element = kNone;
+  RatingKind kind = RatingKind::peak_current;
+  std::string quantity;     ///< "peak voltage", "peak current", "mean power", "energy", "I²t"
+  double rated = 0.0;       ///< SI
+  double actual = 0.0;      ///< SI
+  double used_percent = 0.0;
+  bool exceeded = false;
+  bool worst_case = false;  ///< the actual value is the worst over the declared sweeps
+  std::string unit;         ///< symbol for reports
+  /// Where the figure comes from: "at 8.18 ms" (a peak), "segment 1, 0 s .. 35 ms" (a mean
+  /// power: that segment's steady state), "over the window" (energy, I²t).
+  std::string where;
+  /// With sweeps: the argument of the worst case, "worst case at supply.phase = -90°", or "the
+  /// same at every supply.phase" where the sweep does not change the figure (empty at the
+  /// nominal values).
+  std::string worst_argument;
+  std::string worst_target;        ///< with sweeps: the sweep's target, "supply.phase"
+  std::optional<double> worst_at;  ///< with sweeps: the argument in SI (rad, V, A or s)
+  std::string worst_at_unit;       ///< "rad", "V", "A" or "s"
+  SourceLoc loc;            ///< position of the rating attribute
+};
+
+/// The stress that a rating of `kind` on element `element` limits, measured on `solution`.
+RatingStress rating_stress(const Solution& solution, ElementId element, RatingKind kind);
+
+/// Compares every rating of the circuit with the solution's stress (the nominal values; see
+/// worst_case_ratings in worst.hpp for the worst over the declared sweeps).
+std::vector<RatingCheck> check_ratings(const Solution& solution);
+
+/// Sets `check.actual` and fills used_percent and exceeded from its magnitude.
+void judge_rating(RatingCheck& check, double actual);
+
+/// "where" text of a stress on `solution` (see RatingCheck::where).
+std::string stress_location(const Solution& solution, RatingKind kind, const RatingStress& stress);
+
+/// "peak voltage", "peak current", "mean power", "energy", "I²t".
+std::string_view rating_quantity(RatingKind kind);
+/// "V", "A", "W", "J", "A²s".
+std::string_view rating_unit(RatingKind kind);
+
+/// One line of a rating in the text reports of `solve` and `worst`, without indentation:
+/// "K1             peak current      325.1 A of      100 A  325.1 %  EXCEEDED  (at 5.1 ms;
+/// worst case at supply.phase = -87.3°)".
+std::string rating_line(const Circuit& circuit, const RatingCheck& check);
+
+/// A share in percent for reports: one decimal below 10 000 % ("8.2 %", "325.0 %"), three
+/// significant digits above ("3.25e+07 %"), so that an absurd ratio never prints hundreds of
+/// digits.
+std::string percent_text(double percent);
+
+}  // namespace netfold
