@@ -318,55 +318,152 @@ Extremes find_extremes(const Piece& piece, double from, double to) {
 
 namespace {
 
+// Values and derivatives of a Wave on the uniform grid t_i = from + i·h, i = first .. first +
+// count − 1. The sinusoids turn by a rotation per step instead of a sin/cos each (a supply of
+// 3000 harmonics took a minute in sin/cos alone), re-anchored every kRotationRun points so
+// that the rounding of the product stays near 100 ε of the amplitude: good for bracketing
+// extremes; every value that becomes a candidate extreme is evaluated again exactly.
+constexpr std::size_t kRotationRun = 64;
+
+void wave_on_grid(const Wave& w, double from, double h, std::size_t first, std::size_t count, double* v, double* d) {
+  for (std::size_t i = 0; i < count; ++i) {
+    const double s = from + h * static_cast<double>(first + i) - w.t0;
+    const double e = std::exp(w.a * s);
+    v[i] = w.offset + (w.drift != 0.0 ? w.drift * phi(w.a, s) : 0.0) + w.transient * e;
+    d[i] = w.drift * e + w.transient * w.a * e;
+  }
+  for (const auto& p : w.phasors) {
+    const double omega = kTwoPi * p.frequency;
+    const std::complex<double> turn = std::polar(1.0, omega * h);
+    std::complex<double> z;
+    for (std::size_t i = 0; i < count; ++i) {
+      if (i % kRotationRun == 0) z = p.value * std::polar(1.0, omega * (from + h * static_cast<double>(first + i)));
+      v[i] += z.real();
+      d[i] -= omega * z.imag();
+      z *= turn;
+    }
+  }
+}
+
+// Bounds of |y|, |y'| and |y''| of a Wave over its segment (nothing for a growing term).
+struct WaveBounds {
+  double b0 = 0.0, b1 = 0.0, b2 = 0.0;
+};
+
+std::optional<WaveBounds> wave_bounds(const Wave& w) {
+  if (w.a > 0.0) return std::nullopt;
+  WaveBounds b;
+  const double a = std::fabs(w.a);
+  b.b0 = std::fabs(w.offset) + std::fabs(w.transient) + std::fabs(w.drift) * (w.t1 - w.t0);
+  b.b1 = std::fabs(w.transient) * a + std::fabs(w.drift);
+  b.b2 = std::fabs(w.transient) * a * a + std::fabs(w.drift) * a;
+  for (const auto& p : w.phasors) {
+    const double m = std::abs(p.value), omega = kTwoPi * p.frequency;
+    b.b0 += m;
+    b.b1 += m * omega;
+    b.b2 += m * omega * omega;
+  }
+  return b;
+}
+
+// A bound of |y''| of a piece (the product rule for powers), or nothing.
+std::optional<double> curvature_bound(const Piece& piece) {
+  const auto f = wave_bounds(piece.f);
+  if (!f) return std::nullopt;
+  if (!piece.g) return f->b2;
+  const auto g = wave_bounds(*piece.g);
+  if (!g) return std::nullopt;
+  return f->b2 * g->b0 + 2.0 * f->b1 * g->b1 + f->b0 * g->b2;
+}
+
+// Follows a sequence of samples (t, approximate value, approximate derivative) in time
+// order: keeps the extremes (re-evaluated exactly where one improves) and refines every sign
+// change of the derivative by Brent's method on the exact derivative — except where the
+// curvature bound M shows that the local extreme between two samples Δt apart, at most
+// M·Δt²/8 beyond the larger (smaller) of them, cannot pass the extreme already found.
+class ExtremeScan {
+ public:
+  ExtremeScan(const Piece& piece, Extremes& ex, double tol)
+      : piece_(piece), ex_(ex), tol_(tol), curvature_(curvature_bound(piece)) {}
+  void add(double t, double v, double d) {
+    if (v > ex_.max || v < ex_.min) consider(t, piece_.value(t));
+    const bool rises_then_falls = d_prev_ > 0.0 && d <= 0.0, falls_then_rises = d_prev_ < 0.0 && d >= 0.0;
+    if (started_ && (rises_then_falls || falls_then_rises) && could_pass(t, v, rises_then_falls)) {
+      auto deriv = [&](double x) { return piece_.derivative(x); };
+      const double root = brent_root(deriv, t_prev_, t, deriv(t_prev_), deriv(t), tol_);
+      consider(root, piece_.value(root));
+    }
+    started_ = true;
+    t_prev_ = t;
+    v_prev_ = v;
+    d_prev_ = d;
+  }
+
+ private:
+  void consider(double t, double v) {
+    if (v > ex_.max) ex_.max = v, ex_.t_max = t;
+    if (v < ex_.min) ex_.min = v, ex_.t_min = t;
+  }
+  bool could_pass(double t, double v, bool maximum) const {
+    if (!curvature_) return true;
+    const double dt = t - t_prev_;
+    const double reach = *curvature_ * dt * dt / 8.0;
+    // The samples are approximate (rotations): a margin of 1e-9 of their size keeps the test safe.
+    const double margin = 1e-9 * (std::fabs(v) + std::fabs(v_prev_)) + reach;
+    return maximum ? std::max(v, v_prev_) + margin >= ex_.max : std::min(v, v_prev_) - margin <= ex_.min;
+  }
+  const Piece& piece_;
+  Extremes& ex_;
+  double tol_;
+  std::optional<double> curvature_;
+  bool started_ = false;
+  double t_prev_ = 0.0, v_prev_ = 0.0, d_prev_ = 0.0;
+};
+
 Extremes sampled_extremes(const Piece& piece, double from, double to, std::size_t n) {
   Extremes ex;
-  double v0 = piece.value(from);
-  ex.max = ex.min = v0;
+  ex.max = ex.min = piece.value(from);
   ex.t_max = ex.t_min = from;
-  auto consider = [&](double t, double v) {
-    if (v > ex.max) {
-      ex.max = v;
-      ex.t_max = t;
-    }
-    if (v < ex.min) {
-      ex.min = v;
-      ex.t_min = t;
-    }
-  };
-  consider(to, piece.value(to));
+  const double v_to = piece.value(to);
+  if (v_to > ex.max) ex.max = v_to, ex.t_max = to;
+  if (v_to < ex.min) ex.min = v_to, ex.t_min = to;
   const double span = to - from;
   if (!(span > 0.0)) return ex;
+  const double tol = 1e-12 * std::max(span, std::fabs(to));
 
+  // The uniform grid, in chunks so that memory stays small for a long window.
+  const double h = span / static_cast<double>(n);
+  constexpr std::size_t kChunk = 4096;
+  std::vector<double> fv(kChunk), fd(kChunk), gv(kChunk), gd(kChunk);
+  ExtremeScan uniform(piece, ex, tol);
+  for (std::size_t first = 0; first <= n; first += kChunk) {
+    const std::size_t count = std::min(kChunk, n + 1 - first);
+    wave_on_grid(piece.f, from, h, first, count, fv.data(), fd.data());
+    if (piece.g) wave_on_grid(*piece.g, from, h, first, count, gv.data(), gd.data());
+    for (std::size_t i = 0; i < count; ++i) {
+      const double t = first + i == n ? to : from + h * static_cast<double>(first + i);
+      if (piece.g)
+        uniform.add(t, fv[i] * gv[i], fd[i] * gv[i] + fv[i] * gd[i]);
+      else
+        uniform.add(t, fv[i], fd[i]);
+    }
+  }
+  // Transients live near the segment start: a second pass over their first 30 time constants.
   std::vector<double> ts;
-  ts.reserve(n + 300);
-  for (std::size_t i = 0; i <= n; ++i) ts.push_back(from + span * static_cast<double>(i) / static_cast<double>(n));
-  // Transients live near the segment start: cluster points over its first 30 time constants.
   for (double a : {piece.f.a, piece.g ? piece.g->a : 0.0}) {
     if (a >= 0.0) continue;
-    double tau = -1.0 / a;
+    const double tau = -1.0 / a;
     if (tau >= span) continue;  // the uniform grid already resolves it
-    for (int k = 1; k <= 240; ++k) {
-      double t = std::max(from, piece.t0()) + tau * k / 8.0;
-      if (t >= to) break;
+    for (int k = 0; k <= 240; ++k) {
+      const double t = std::max(from, piece.t0()) + tau * k / 8.0;
+      if (t > to) break;
       ts.push_back(t);
     }
   }
   std::sort(ts.begin(), ts.end());
   ts.erase(std::unique(ts.begin(), ts.end()), ts.end());
-
-  const double tol = 1e-12 * std::max(span, std::fabs(to));
-  auto deriv = [&](double t) { return piece.derivative(t); };
-  double t_prev = ts.front(), d_prev = deriv(t_prev);
-  for (std::size_t i = 1; i < ts.size(); ++i) {
-    double t = ts[i], d = deriv(t);
-    consider(t, piece.value(t));
-    if ((d_prev > 0.0 && d <= 0.0) || (d_prev < 0.0 && d >= 0.0)) {
-      double root = brent_root(deriv, t_prev, t, d_prev, d, tol);
-      consider(root, piece.value(root));
-    }
-    t_prev = t;
-    d_prev = d;
-  }
+  ExtremeScan cluster(piece, ex, tol);
+  for (double t : ts) cluster.add(t, piece.value(t), piece.derivative(t));
   return ex;
 }
 
