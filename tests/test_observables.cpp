@@ -125,3 +125,22 @@ TEST_CASE("issue 12 item 2: the Norton current at a port includes the storage el
   // And v_oc is the link voltage itself at that instant (no load at the port).
   CHECK_REL(eq.voc.dc, s->value(observable(s, "@link"), at), 1e-12);
 }
+
+TEST_CASE("issue 12 limits: an observable watched many times is evaluated and reported once", "[observables]") {
+  // 50 000 repeats of one name cost 9.4 GB in the first edition; each repeat is the same column.
+  std::string watch = "watch c_gs.v";
+  for (int k = 0; k < 2000; ++k) watch += ", c_gs.v";
+  auto s = solve_text(
+      "drive: voltage-source d -> gnd, step 12 V at 0 s\nr_g: resistor d -> g, 10 ohm\n"
+      "c_gs: capacitor g -> gnd, 1 nF\n" + watch + ", @d - @g\nwindow 0 .. 100 ns\n");
+  REQUIRE(s->observables().size() == 2);
+  CHECK(s->observables()[0].text == "c_gs.v");
+  CHECK(s->observables()[1].text == "@d - @g");
+  bool warned = false;
+  for (const auto& w : s->warnings()) warned |= w.find("2000 repeated names in 'watch'") != std::string::npos;
+  CHECK(warned);
+  std::istringstream csv(waveform_csv(*s));
+  std::string header;
+  std::getline(csv, header);
+  CHECK(header == "t,c_gs.v,@d - @g");
+}

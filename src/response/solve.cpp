@@ -654,7 +654,17 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
 
   // What is reported: the watch list, or the storage element's voltage and current.
   if (!c.watches().empty()) {
-    s.observables_ = c.watches();
+    // Each observable once, in the order first watched: a repeat adds nothing to any report,
+    // and 50 000 repeats of one name cost gigabytes of identical columns.
+    std::unordered_map<std::string, std::size_t> seen;
+    std::size_t repeats = 0;
+    for (const Observable& o : c.watches()) {
+      if (seen.emplace(o.text, s.observables_.size()).second) s.observables_.push_back(o);
+      else ++repeats;
+    }
+    if (repeats > 0)
+      s.warnings_.push_back(fmt::format("{} repeated name{} in 'watch' (line {}): each observable is reported once",
+                                        repeats, repeats > 1 ? "s" : "", c.watches().front().loc.line));
   } else if (s.storage_ != kNone) {
     for (auto kind : {ObservableKind::element_voltage, ObservableKind::element_current}) {
       Observable o;
