@@ -28,3 +28,9 @@ add_test(NAME cli_worst COMMAND netfold worst ${PROJECT_SOURCE_DIR}/netlists/val
 set_tests_properties(cli_worst PROPERTIES PASS_REGULAR_EXPRESSION "sweep supply.phase .*coil_l.i")
 add_test(NAME cli_unknown_option COMMAND ${CMAKE_COMMAND} -DBIN=$<TARGET_FILE:netfold> -DARGS=solve\\;--nonsense\\;x.nf
          -DEXPECT=2 -P ${PROJECT_SOURCE_DIR}/tests/expect_exit.cmake)
+
+# Issue 12, messages: a port at an unknown node names the file's reference node.
+add_test(NAME cli_equiv_unknown_port_node COMMAND ${CMAKE_COMMAND} -DBIN=$<TARGET_FILE:netfold>
+         -DARGS=equiv\\;${PROJECT_SOURCE_DIR}/netlists/valve_coil.nf\\;--port\\;gnd,a -DEXPECT=2
+         "-DMESSAGE=unknown node 'gnd'; this file's reference node is 'n' \\('ground n' at line 4\\)"
+         -P ${PROJECT_SOURCE_DIR}/tests/expect_exit.cmake)

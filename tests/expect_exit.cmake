@@ -1,5 +1,6 @@
 # Runs BIN (with ARGS, or `solve FILE --no-verify`) and requires exit status EXPECT (default 2)
-# and, for status 2 with a FILE, a `FILE:LINE:COL: error:` message.
+# and, for status 2 with a FILE, a `FILE:LINE:COL: error:` message; with MESSAGE, standard error
+# must match that regular expression.
 if(NOT DEFINED EXPECT)
   set(EXPECT 2)
 endif()
@@ -17,4 +18,7 @@ if(DEFINED FILE AND EXPECT EQUAL 2)
   if(NOT out STREQUAL "")
     message(FATAL_ERROR "a refused file must not print a report:\n${out}")
   endif()
+endif()
+if(DEFINED MESSAGE AND NOT err MATCHES "${MESSAGE}")
+  message(FATAL_ERROR "standard error does not match '${MESSAGE}':\n${err}")
 endif()

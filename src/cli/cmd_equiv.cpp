@@ -4,6 +4,8 @@
 
 #include "commands.hpp"
 #include "netfold/parse.hpp"
+#include <fmt/format.h>
+
 #include "netfold/report.hpp"
 #include "netfold/solve.hpp"
 #include "netfold/units.hpp"
@@ -36,7 +38,18 @@ Command register_equiv(CLI::App& app) {
         while (!name.empty() && (name.front() == ' ' || name.front() == '@')) name.erase(name.begin());
         while (!name.empty() && name.back() == ' ') name.pop_back();
         auto id = circuit.find_node(name);
-        if (!id) throw argument_error("--port", "unknown node '" + name + "'");
+        if (!id) {
+          // Name the reference node as the file spells it: a port at "gnd" fails in a file
+          // whose reference is `ground n`.
+          const std::string ground = circuit.nodes()[circuit.ground()];
+          const SourceLoc gl = circuit.ground_loc();
+          throw argument_error(
+              "--port", fmt::format("unknown node '{}'; this file's reference node is '{}' ({}), and its nodes "
+                                    "are named as on its element lines",
+                                    name, ground,
+                                    gl.line > 0 ? fmt::format("'ground {}' at line {}", ground, gl.line)
+                                                : std::string("the default, no 'ground' line")));
+        }
         return *id;
       };
       port = std::make_pair(node(args->port.substr(0, comma)), node(args->port.substr(comma + 1)));
