@@ -1,0 +1,82 @@
+#pragma once
+// The decomposition behind the modal closed form (modal.hpp): a block-diagonal form of the
+// state matrix, made of clusters of nearly equal eigenvalues, computed once per state matrix and
+// segment length and reused for every initial state and forcing (sweeps). Private.
+//
+//     A = D·Q·V · blockdiag(T_c) · V⁻¹·Q*·D⁻¹,    x = S·y with S = D·Q·V
+//
+//   D  diagonal balancing, powers of 2 (exact), so that rows and columns of D⁻¹·A·D have
+//      comparable norms (Parlett & Reinsch, Numer. Math. 13, 1969; from memory)
+//   Q  unitary: the complex Schur vectors of the balanced matrix (real Schur form by Eigen,
+//      turned complex 2×2 block by 2×2 block so that conjugate eigenvalues stay exactly
+//      conjugate), reordered so that each cluster is contiguous (Givens swaps of neighbours)
+//   V  unit upper triangular: the Sylvester solutions that decouple the clusters
+//      (Bavely & Stewart, Numer. Math. 32, 1979; from memory)
+//   T_c  the cluster's upper-triangular diagonal block of the Schur form
+//
+// Clusters: two eigenvalues join when |λᵢ − λⱼ|·L ≤ 1 (within a segment of length L their
+// exponentials are then expanded together as e^{μs}·Σ (N·s)^k/k!, N = T_c − μ·I, with at most e²
+// of cancellation) or when |λᵢ − λⱼ| ≤ 1e-6·max(|λᵢ|, |λⱼ|) (separating them would amplify
+// rounding by up to the inverse gap). After the Sylvester solutions are known, two clusters
+// whose coupling block of V exceeds max(1e3, e^{2R}) are merged as well, R the merged cluster's
+// radius times L: whichever of the two costs less accuracy is taken. Real parts of eigenvalues
+// below the backward error of the Schur form (8·n·ε·‖A‖) are set to 0, so that a lossless or
+// DC-isolated mode is exactly undamped (rounding would otherwise make it grow or decay).
+
+#include <complex>
+#include <string>
+#include <vector>
+
+#include <Eigen/Dense>
+
+namespace netfold::response {
+
+/// A contiguous range of the Schur form whose eigenvalues are expanded together.
+struct Cluster {
+  int begin = 0, end = 0;  ///< rows/columns [begin, end)
+  int size() const { return end - begin; }
+};
+
+/// The block-diagonal form of one state matrix for segments of one length (see the file comment).
+struct ModalBasis {
+  int n = 0;                     ///< number of states
+  double span = 0.0;             ///< segment length L the clusters were chosen for, s
+  Eigen::VectorXd scale;         ///< D
+  Eigen::MatrixXcd q;            ///< Q
+  Eigen::MatrixXcd t;            ///< the Schur form (upper triangular); its diagonal blocks are T_c
+  Eigen::MatrixXcd v;            ///< V (unit upper triangular)
+  Eigen::MatrixXcd s;            ///< D·Q·V
+  std::vector<Cluster> clusters;
+  double condition = 1.0;        ///< estimate of ‖V‖₁·‖V⁻¹‖₁
+  bool ok = true;                ///< false when the Schur form could not be computed
+  std::string reason;            ///< why, when not ok
+
+  /// The eigenvalue at position i of the Schur form, 1/s.
+  std::complex<double> eigenvalue(int i) const { return t(i, i); }
+  /// y = V⁻¹·Q*·D⁻¹·x: modal coordinates of a state vector.
+  Eigen::VectorXcd to_modal(const Eigen::VectorXcd& x) const;
+};
+
+/// Whether two rates (eigenvalues or forcing rates z = jω) belong together over a span L.
+bool rates_close(std::complex<double> a, std::complex<double> b, double span);
+
+/// Decomposes the state matrix `a` (n×n, real) for segments of length `span` (s).
+ModalBasis decompose(const Eigen::MatrixXd& a, double span);
+
+/// The exponential of a cluster's triangular matrix M applied to v, as a series about the centre
+/// μ = trace(M)/size: e^{M·s}·v = e^{μs}·Σ_k coefs[k]·s^k over s ∈ [0, span].
+struct ClusterSeries {
+  std::complex<double> centre;          ///< μ, 1/s
+  std::vector<Eigen::MatrixXcd> coefs;  ///< the first `rows` rows of (M − μI)^k·v/k!
+  double amplification = 1.0;           ///< Σ_k ‖coef_k‖·L^k / ‖sum at s = 0 or L‖ (cancellation)
+  bool converged = true;                ///< the terms fell below rounding within the cap
+};
+
+/// Sums the series until a term is below rounding over [0, span] (two in a row), keeping `rows`
+/// rows of each coefficient; stops where span^k would leave double range.
+ClusterSeries exponential_series(const Eigen::MatrixXcd& m, const Eigen::MatrixXcd& v, Eigen::Index rows, double span);
+
+/// Balances `a` in place (D⁻¹·A·D) and returns D.
+Eigen::VectorXd balance(Eigen::MatrixXd& a);
+
+}  // namespace netfold::response
