@@ -88,8 +88,10 @@ void solve_cluster(const ModalBasis& basis, const Cluster& cl, const Eigen::Vect
     add_term(terms, Term{1.0, lambda, 0, false, 0.0}, sc * w0);
     if (near.empty()) return;
     const Forcing& f = forcings[near.front()];
-    // b·e^{zs}·φ(λ − z, s): the exact forced part of one mode near the forcing rate.
-    add_term(terms, Term{1.0, f.z, 0, true, lambda - f.z}, sc * (f.modal.segment(b, 1) * f.phase));
+    // b·e^{zs}·φ(λ − z, s): the exact forced part of one mode near the forcing rate; a detuning
+    // below the eigenvalue's own rounding is exact resonance, b·s·e^{zs}.
+    const Complex detuning = std::abs(lambda - f.z) <= basis.rounding ? Complex(0.0) : lambda - f.z;
+    add_term(terms, Term{1.0, f.z, 0, true, detuning}, sc * (f.modal.segment(b, 1) * f.phase));
     return;
   }
   const Eigen::Index q = static_cast<Eigen::Index>(near.size());
@@ -114,7 +116,8 @@ void solve_cluster(const ModalBasis& basis, const Cluster& cl, const Eigen::Vect
 Accuracy judge(const ModalBasis& basis, const Assembly& sum, double span, const ModalOptions& options) {
   Accuracy acc;
   double growth = 0.0;
-  for (int i = 0; i < basis.n; ++i) growth = std::max(growth, basis.eigenvalue(i).real() * span);
+  if (basis.ok)
+    for (int i = 0; i < basis.n; ++i) growth = std::max(growth, basis.eigenvalue(i).real() * span);
   acc.estimated_error = kErrorFactor * kEps * basis.condition * sum.amplification;
   if (!basis.ok) {
     acc.reason = basis.reason;

@@ -136,7 +136,7 @@ Eigen::MatrixXd transition_matrix(const ModalBasis& basis, double span, Accuracy
 /// The state that repeats after one period.
 struct PeriodicState {
   Eigen::VectorXd x;        ///< x* = (I − Φ)⁻¹·β
-  double condition = 1.0;   ///< estimate of κ₁(I − Φ)
+  double condition = 1.0;   ///< estimate of ‖(I − Φ)⁻¹‖₁·(1 + ‖Φ‖₁)
   Accuracy accuracy;
 };
 

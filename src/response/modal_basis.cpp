@@ -344,9 +344,9 @@ ModalBasis decompose(const Eigen::MatrixXd& a, double span) {
   basis.t = schur.matrixT().cast<Complex>();
   basis.q = schur.matrixU().cast<Complex>();
   make_complex(basis.t, basis.q);
-  const double floor = 8.0 * basis.n * kEps * ab.norm();
+  basis.rounding = 8.0 * basis.n * kEps * ab.norm();
   for (int i = 0; i < basis.n; ++i)
-    if (std::fabs(basis.t(i, i).real()) <= floor) basis.t(i, i).real(0.0);
+    if (std::fabs(basis.t(i, i).real()) <= basis.rounding) basis.t(i, i).real(0.0);
 
   std::vector<int> label = initial_labels(basis.t, span);
   for (int round = 0;; ++round) {

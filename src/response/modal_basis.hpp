@@ -21,7 +21,8 @@
 // whose coupling block of V exceeds max(1e3, e^{2R}) are merged as well, R the merged cluster's
 // radius times L: whichever of the two costs less accuracy is taken. Real parts of eigenvalues
 // below the backward error of the Schur form (8·n·ε·‖A‖) are set to 0, so that a lossless or
-// DC-isolated mode is exactly undamped (rounding would otherwise make it grow or decay).
+// DC-isolated mode is exactly undamped (rounding would otherwise make it grow or decay); for the
+// same reason a forcing rate within that distance of a mode is taken as exactly resonant.
 
 #include <complex>
 #include <string>
@@ -48,6 +49,7 @@ struct ModalBasis {
   Eigen::MatrixXcd s;            ///< D·Q·V
   std::vector<Cluster> clusters;
   double condition = 1.0;        ///< estimate of ‖V‖₁·‖V⁻¹‖₁
+  double rounding = 0.0;         ///< 8·n·ε·‖D⁻¹AD‖: eigenvalues are known to this, 1/s
   bool ok = true;                ///< false when the Schur form could not be computed
   std::string reason;            ///< why, when not ok
 

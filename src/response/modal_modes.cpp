@@ -114,9 +114,13 @@ PeriodicState periodic_state(const Eigen::MatrixXd& phi, const Eigen::VectorXd& 
   const Eigen::MatrixXd m = Eigen::MatrixXd::Identity(n, n) - phi;
   Eigen::PartialPivLU<Eigen::MatrixXd> lu(m);
   const double rcond = lu.rcond();
-  out.condition = rcond > 0.0 ? 1.0 / rcond : std::numeric_limits<double>::infinity();
+  // Φ is known to rounding relative to its own size, not to that of I − Φ (which vanishes for an
+  // undamped mode): the amplification is ‖(I − Φ)⁻¹‖·(1 + ‖Φ‖).
+  const double m_norm = m.cwiseAbs().colwise().sum().maxCoeff();
+  const double phi_norm = phi.cwiseAbs().colwise().sum().maxCoeff();
+  out.condition = rcond > 0.0 && m_norm > 0.0 ? (1.0 + phi_norm) / (rcond * m_norm) : std::numeric_limits<double>::infinity();
   out.accuracy.estimated_error = 4.0 * kEps * out.condition;
-  if (!(rcond > 0.0) || !phi.allFinite() || !beta.allFinite()) {
+  if (!std::isfinite(out.condition) || !phi.allFinite() || !beta.allFinite()) {
     out.x = Eigen::VectorXd::Zero(n);
     out.accuracy.reason =
         "the one-period map has an eigenvalue at 1 (a mode that neither decays nor grows): no unique periodic state";
