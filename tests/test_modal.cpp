@@ -334,8 +334,8 @@ TEST_CASE("the periodic state of an RC under DC is its DC value, and a lossless 
   const double r = 100.0, c = 1e-6, cur = 0.02, period = 1e-4;
   const Eigen::MatrixXd a = Eigen::MatrixXd::Constant(1, 1, -1 / (r * c));
   const Eigen::MatrixXd b = Eigen::MatrixXd::Constant(1, 1, 1 / c);
-  const ModalBasis basis = decompose(a, period);
-  const Eigen::MatrixXd phi = transition_matrix(basis, period);
+  const auto basis = std::make_shared<const ModalBasis>(decompose(a, period));
+  const Eigen::MatrixXd phi = transition_matrix(*basis, period);
   CHECK_REL(phi(0, 0), std::exp(-period / (r * c)), 1e-14);
   const ModalResponse forced = solve_modal(basis, b, Eigen::VectorXd::Zero(1), {dc(cur)}, 0.0, period);
   const PeriodicState ps = periodic_state(phi, forced.value(period));
@@ -405,4 +405,30 @@ TEST_CASE("two identical lossless tanks driven at resonance both grow as t*sin(w
   }, 2000);
   INFO("repeated resonance, max relative error " << err);
   CHECK(err <= 1e-12);
+}
+
+TEST_CASE("a strongly coupled pair of modes 1e-4 apart is expanded together, not separated", "[modal]") {
+  // Reference: for A = [[−1, 1e6], [0, −1 − δ]], x₂ = x₂₀·e^{−(1+δ)t} and
+  // x₁ = e^{−t}·(x₁₀ − 1e6·x₂₀·expm1(−δt)/δ) (integration by hand), in long double. Separating the
+  // two modes would divide the coupling 1e6 by the gap δ = 1e-4 (a condition of about 1e10).
+  const double delta = 1e-4, k = 1e6;
+  const Eigen::Matrix2d a{{-1.0, k}, {0.0, -1.0 - delta}};
+  const Eigen::Vector2d x0(1.0, 0.5);
+  const ModalResponse m = solve_modal(a, Eigen::MatrixXd::Zero(2, 1), x0, {Drive{}}, 0.0, 8.0);
+  REQUIRE(m.accuracy().ok);
+  const double err = worst_error(m, [&](double t) {
+    const long double tl = t, e = std::exp(-tl);
+    const long double x1 = e * (x0(0) - k * x0(1) * std::expm1(-static_cast<long double>(delta) * tl) / delta);
+    return Eigen::Vector2d(static_cast<double>(x1), static_cast<double>(x0(1) * std::exp(-(1.0L + delta) * tl)));
+  });
+  INFO("coupled pair, max relative error " << err << ", estimate " << m.accuracy().estimated_error);
+  CHECK(err <= 1e-13);
+}
+
+TEST_CASE("a mode that grows beyond double range over the segment is flagged", "[modal]") {
+  // Common practice, no source: e^{800} exceeds the largest double (about e^{709.8}).
+  const Eigen::MatrixXd a = Eigen::MatrixXd::Constant(1, 1, 80.0);
+  const ModalResponse m = solve_modal(a, Eigen::MatrixXd::Zero(1, 1), Eigen::VectorXd::Ones(1), {Drive{}}, 0.0, 10.0);
+  CHECK_FALSE(m.accuracy().ok);
+  CHECK(m.accuracy().reason == "a mode grows by e^800 over the segment, beyond double range");
 }

@@ -252,3 +252,18 @@ TEST_CASE("every local extreme of a fast decay riding on a slow oscillation is b
   CHECK_REL(e.max, static_cast<double>(best), 1e-14);
   CHECK(std::fabs(e.t_max - static_cast<double>(best_t)) <= 1e-9);
 }
+
+TEST_CASE("sampling on a uniform grid gives the direct values to a few dozen roundings", "[response]") {
+  // Reference: Response::value at the same times (the definition).
+  const Response y = mixed_response();
+  const auto v = sample(y, 0.3, 2.2, 10'000);
+  REQUIRE(v.size() == 10'001);
+  double scale = 0.0, err = 0.0;
+  for (std::size_t i = 0; i < v.size(); ++i) {
+    const double t = i == 10'000 ? 2.2 : 0.3 + 1.9 * static_cast<double>(i) / 10'000;
+    scale = std::max(scale, std::fabs(y.value(t)));
+    err = std::max(err, std::fabs(v[i] - y.value(t)));
+  }
+  INFO("max difference " << err << ", scale " << scale);
+  CHECK(err <= 1e-13 * scale);
+}

@@ -56,9 +56,9 @@ struct Assembly {
   bool local = false;
 };
 
-void add_term(std::vector<ModalTerm>& terms, const Term& shape, Eigen::VectorXcd coef) {
+void add_term(std::vector<ModalTerm>& terms, const Term& shape, Eigen::Index begin, Eigen::VectorXcd coef) {
   if (coef.isZero(0.0)) return;
-  terms.push_back({shape, std::move(coef)});
+  terms.push_back({shape, begin, std::move(coef)});
 }
 
 // The solution of one cluster: far forcings as particular solutions, near ones inside the
@@ -82,16 +82,15 @@ void solve_cluster(const ModalBasis& basis, const Cluster& cl, const Eigen::Vect
     sum.particular[f].segment(b, p) = particular;
     w0 -= particular * forcings[f].phase;
   }
-  const Eigen::MatrixXcd sc = basis.s.middleCols(b, p);
   if (p == 1 && near.size() <= 1) {
     const Complex lambda = tc(0, 0);
-    add_term(terms, Term{1.0, lambda, 0, false, 0.0}, sc * w0);
+    add_term(terms, Term{1.0, lambda, 0, false, 0.0}, b, w0);
     if (near.empty()) return;
     const Forcing& f = forcings[near.front()];
     // b·e^{zs}·φ(λ − z, s): the exact forced part of one mode near the forcing rate; a detuning
     // below the eigenvalue's own rounding is exact resonance, b·s·e^{zs}.
     const Complex detuning = std::abs(lambda - f.z) <= basis.rounding ? Complex(0.0) : lambda - f.z;
-    add_term(terms, Term{1.0, f.z, 0, true, detuning}, sc * (f.modal.segment(b, 1) * f.phase));
+    add_term(terms, Term{1.0, f.z, 0, true, detuning}, b, f.modal.segment(b, 1) * f.phase);
     return;
   }
   const Eigen::Index q = static_cast<Eigen::Index>(near.size());
@@ -107,7 +106,7 @@ void solve_cluster(const ModalBasis& basis, const Cluster& cl, const Eigen::Vect
   }
   const ClusterSeries series = exponential_series(m, v, p, span);
   for (std::size_t k = 0; k < series.coefs.size(); ++k)
-    add_term(terms, Term{1.0, series.centre, static_cast<int>(k), false, 0.0}, sc * series.coefs[k].col(0));
+    add_term(terms, Term{1.0, series.centre, static_cast<int>(k), false, 0.0}, b, series.coefs[k].col(0));
   sum.amplification = std::max(sum.amplification, series.amplification);
   sum.converged = sum.converged && series.converged;
   sum.local = sum.local || q > 0;
@@ -137,13 +136,15 @@ Accuracy judge(const ModalBasis& basis, const Assembly& sum, double span, const 
 
 }  // namespace
 
-ModalResponse solve_modal(const ModalBasis& basis, const Eigen::MatrixXd& b, const Eigen::VectorXd& x0,
+ModalResponse solve_modal(std::shared_ptr<const ModalBasis> shared, const Eigen::MatrixXd& b, const Eigen::VectorXd& x0,
                           const std::vector<Drive>& inputs, double t0, double t1, const ModalOptions& options) {
+  const ModalBasis& basis = *shared;
   ModalResponse r;
+  r.basis_ = std::move(shared);
   r.t0_ = t0;
   r.t1_ = t1;
   r.inputs_ = inputs;
-  r.constant_ = Eigen::VectorXd::Zero(basis.n);
+  r.dc_ = Eigen::VectorXcd::Zero(basis.n);
   const double span = t1 - t0;
   Assembly sum;
   if (basis.ok) {
@@ -153,11 +154,10 @@ ModalResponse solve_modal(const ModalBasis& basis, const Eigen::MatrixXd& b, con
     const Eigen::VectorXcd y0 = basis.to_modal(x0.cast<Complex>());
     for (const auto& cl : basis.clusters) solve_cluster(basis, cl, y0, forcings, span, r.terms_, sum);
     for (std::size_t f = 0; f < forcings.size(); ++f) {
-      const Eigen::VectorXcd x = basis.s * sum.particular[f];
       if (forcings[f].frequency == 0.0) {
-        r.constant_ = x.real();
-      } else if (!x.isZero(0.0)) {
-        r.phasors_.emplace_back(forcings[f].frequency, x);
+        r.dc_ = sum.particular[f];
+      } else if (!sum.particular[f].isZero(0.0)) {
+        r.phasors_.emplace_back(forcings[f].frequency, sum.particular[f]);
       }
     }
     r.local_ = sum.local;
@@ -168,25 +168,24 @@ ModalResponse solve_modal(const ModalBasis& basis, const Eigen::MatrixXd& b, con
 
 ModalResponse solve_modal(const Eigen::MatrixXd& a, const Eigen::MatrixXd& b, const Eigen::VectorXd& x0,
                           const std::vector<Drive>& inputs, double t0, double t1, const ModalOptions& options) {
-  return solve_modal(decompose(a, t1 - t0), b, x0, inputs, t0, t1, options);
+  return solve_modal(std::make_shared<const ModalBasis>(decompose(a, t1 - t0)), b, x0, inputs, t0, t1, options);
 }
 
-Response ModalResponse::assemble(const Eigen::RowVectorXcd* row, int index, double constant) const {
-  // A state picks one entry of each coefficient vector; an output takes a dot product.
-  auto coef_of = [&](const Eigen::VectorXcd& vec) -> Complex { return row ? Complex((*row) * vec) : vec(index); };
+Response ModalResponse::assemble(const Eigen::RowVectorXcd& row) const {
   Response r;
   r.t0 = t0_;
   r.t1 = t1_;
   r.local = local_;
-  r.periodic.dc = constant;
+  if (!basis_ || !basis_->ok) return r;
+  r.periodic.dc = Complex(row * dc_).real();
   for (const auto& [f, vec] : phasors_) {
-    const Complex v = coef_of(vec);
+    const Complex v = row * vec;
     if (v != Complex(0.0, 0.0)) r.periodic.add_phasor(f, v);
   }
   r.terms.reserve(terms_.size());
   for (const auto& mt : terms_) {
     Term t = mt.shape;
-    t.c = coef_of(mt.coef);
+    t.c = row.segment(mt.begin, mt.coef.size()) * mt.coef;
     r.terms.push_back(t);
   }
   r.normalise();
@@ -194,23 +193,26 @@ Response ModalResponse::assemble(const Eigen::RowVectorXcd* row, int index, doub
 }
 
 Response ModalResponse::state(int i) const {
-  return assemble(nullptr, i, constant_(i));
+  Eigen::RowVectorXcd unit = Eigen::RowVectorXcd::Zero(states());
+  unit(i) = 1.0;
+  return assemble(basis_ && basis_->ok ? basis_->output_row(unit) : unit);
 }
 
 Response ModalResponse::output(const Eigen::RowVectorXd& c, const Eigen::RowVectorXd& d) const {
   const Eigen::RowVectorXcd row = c.cast<Complex>();
-  Response r = assemble(&row, 0, c.dot(constant_));
+  Response r = assemble(basis_ && basis_->ok ? basis_->output_row(row) : row);
   for (Eigen::Index j = 0; j < d.size() && j < static_cast<Eigen::Index>(inputs_.size()); ++j)
     if (d(j) != 0.0) r.periodic.add(inputs_[static_cast<std::size_t>(j)], d(j));
   return r;
 }
 
 Eigen::VectorXd ModalResponse::value(double t) const {
+  if (!basis_ || !basis_->ok) return Eigen::VectorXd::Zero(states());
   const double s = t - t0_;
-  Eigen::VectorXd x = constant_;
-  for (const auto& [f, vec] : phasors_) x += (vec * std::polar(1.0, 2.0 * std::numbers::pi * f * t)).real();
-  for (const auto& mt : terms_) x += (mt.coef * mt.shape.value(s)).real();
-  return x;
+  Eigen::VectorXcd y = dc_;
+  for (const auto& [f, vec] : phasors_) y += vec * std::polar(1.0, 2.0 * std::numbers::pi * f * t);
+  for (const auto& mt : terms_) y.segment(mt.begin, mt.coef.size()) += mt.coef * mt.shape.value(s);
+  return basis_->to_state(y).real();
 }
 
 }  // namespace netfold::response

@@ -40,6 +40,7 @@
 // (the exact figures measured are in the tests' output and the report of this work).
 
 #include <complex>
+#include <memory>
 #include <string>
 #include <vector>
 
@@ -81,17 +82,19 @@ std::vector<Mode> modes_of(const ModalBasis& basis);
 /// The modes of a state matrix, slowest first.
 std::vector<Mode> modes_of(const Eigen::MatrixXd& a);
 
-/// One term shape with one coefficient per state.
+/// One term shape with its coefficients in the modal coordinates of one cluster.
 struct ModalTerm {
   Term shape;             ///< c unused (1)
-  Eigen::VectorXcd coef;  ///< the coefficient of each state
+  Eigen::Index begin = 0; ///< the cluster's first modal coordinate
+  Eigen::VectorXcd coef;  ///< the coefficient of each of the cluster's coordinates
 };
 
-/// The responses of every state of one segment, and of any output y = C·x + D·u.
+/// The responses of every state of one segment, and of any output y = C·x + D·u. Kept in modal
+/// coordinates: an output costs O(n²) once (its row c·D·Q·V), then O(1) per term.
 class ModalResponse {
  public:
   /// Number of states.
-  int states() const { return static_cast<int>(constant_.size()); }
+  int states() const { return basis_ ? basis_->n : 0; }
   /// The response of state i.
   Response state(int i) const;
   /// The response of y = c·x + d·u(t) (c: n entries, d: m entries).
@@ -107,13 +110,14 @@ class ModalResponse {
   double t1() const { return t1_; }
 
  private:
-  friend ModalResponse solve_modal(const ModalBasis&, const Eigen::MatrixXd&, const Eigen::VectorXd&,
+  friend ModalResponse solve_modal(std::shared_ptr<const ModalBasis>, const Eigen::MatrixXd&, const Eigen::VectorXd&,
                                    const std::vector<Drive>&, double, double, const ModalOptions&);
-  Response assemble(const Eigen::RowVectorXcd* row, int index, double constant) const;
+  Response assemble(const Eigen::RowVectorXcd& row) const;
 
+  std::shared_ptr<const ModalBasis> basis_;
   double t0_ = 0.0, t1_ = 0.0;
-  Eigen::VectorXd constant_;
-  std::vector<std::pair<double, Eigen::VectorXcd>> phasors_;  ///< frequency (Hz), phasor per state
+  Eigen::VectorXcd dc_;                                       ///< DC particular solution, modal
+  std::vector<std::pair<double, Eigen::VectorXcd>> phasors_;  ///< frequency (Hz), phasor, modal
   std::vector<ModalTerm> terms_;
   std::vector<Drive> inputs_;
   bool local_ = false;
@@ -123,7 +127,7 @@ class ModalResponse {
 
 /// The exact response over [t0, t1] with a decomposition made for span t1 − t0 (reused across
 /// initial states and forcings of the same matrix).
-ModalResponse solve_modal(const ModalBasis& basis, const Eigen::MatrixXd& b, const Eigen::VectorXd& x0,
+ModalResponse solve_modal(std::shared_ptr<const ModalBasis> basis, const Eigen::MatrixXd& b, const Eigen::VectorXd& x0,
                           const std::vector<Drive>& inputs, double t0, double t1, const ModalOptions& options = {});
 
 /// The exact response over [t0, t1] of dx/dt = A·x + B·u(t), x(t0) = x0, inputs[i] = u_i(t).

@@ -14,7 +14,7 @@ namespace {
 
 using Complex = std::complex<double>;
 constexpr double kEps = std::numeric_limits<double>::epsilon();
-constexpr double kSpanGap = 1.0;        // |λᵢ − λⱼ|·L below which two modes are expanded together
+constexpr double kSpanGap = 1.0;        // |λ − z|·L below which a forcing joins a mode
 constexpr double kRelativeGap = 1e-6;   // |λᵢ − λⱼ|/|λ| below which they are never separated
 constexpr double kCouplingFloor = 1e3;  // a coupling in V below which clusters stay apart
 constexpr int kMergeRounds = 8;
@@ -177,13 +177,13 @@ double inverse_norm_estimate(const Eigen::MatrixXcd& v) {
 }
 
 // Labels from the closeness rule (union–find over all pairs).
-std::vector<int> initial_labels(const Eigen::MatrixXcd& t, double span) {
+std::vector<int> initial_labels(const Eigen::MatrixXcd& t) {
   const int n = static_cast<int>(t.rows());
   std::vector<int> parent(static_cast<std::size_t>(n));
   std::iota(parent.begin(), parent.end(), 0);
   for (int i = 0; i < n; ++i)
     for (int j = i + 1; j < n; ++j)
-      if (rates_close(t(i, i), t(j, j), span)) parent[static_cast<std::size_t>(find_root(parent, j))] = find_root(parent, i);
+      if (modes_close(t(i, i), t(j, j))) parent[static_cast<std::size_t>(find_root(parent, j))] = find_root(parent, i);
   std::vector<int> label(static_cast<std::size_t>(n));
   for (int i = 0; i < n; ++i) label[static_cast<std::size_t>(i)] = find_root(parent, i);
   return label;
@@ -202,9 +202,9 @@ bool merge_coupled(const Eigen::MatrixXcd& t, const Eigen::MatrixXcd& v, const s
   for (int c = 0; c < n; ++c)
     for (int r = 0; r < c; ++r) {
       const double m = std::abs(v(r, c));
-      if (m <= kCouplingFloor) continue;
+      if (m <= kCouplingFloor) continue;  // (a NaN or infinite coupling goes on: it must merge)
       auto& slot = coupling[{owner[static_cast<std::size_t>(r)], owner[static_cast<std::size_t>(c)]}];
-      slot = std::max(slot, m);
+      if (!(m <= slot)) slot = m;
     }
   std::vector<int> parent(clusters.size());
   std::iota(parent.begin(), parent.end(), 0);
@@ -220,7 +220,7 @@ bool merge_coupled(const Eigen::MatrixXcd& t, const Eigen::MatrixXcd& v, const s
     for (int i = a.begin; i < a.end; ++i) radius = std::max(radius, std::abs(t(i, i) - centre));
     for (int i = b.begin; i < b.end; ++i) radius = std::max(radius, std::abs(t(i, i) - centre));
     const double exponent = 2.0 * radius * span;
-    if (exponent < 700.0 && m > std::exp(exponent)) {
+    if (exponent < 700.0 && !(m <= std::exp(exponent))) {
       parent[static_cast<std::size_t>(find_root(parent, pair.second))] = find_root(parent, pair.first);
       merged = true;
     }
@@ -232,10 +232,13 @@ bool merge_coupled(const Eigen::MatrixXcd& t, const Eigen::MatrixXcd& v, const s
 
 }  // namespace
 
+bool modes_close(Complex a, Complex b) {
+  return std::abs(a - b) <= kRelativeGap * std::max(std::abs(a), std::abs(b));
+}
+
 bool rates_close(Complex a, Complex b, double span) {
-  const double gap = std::abs(a - b);
   const double by_span = (span > 0.0 && std::isfinite(span)) ? kSpanGap / span : 0.0;
-  return gap <= std::max(by_span, kRelativeGap * std::max(std::abs(a), std::abs(b)));
+  return std::abs(a - b) <= by_span || modes_close(a, b);
 }
 
 Eigen::VectorXd balance(Eigen::MatrixXd& a) {
@@ -324,6 +327,16 @@ Eigen::VectorXcd ModalBasis::to_modal(const Eigen::VectorXcd& x) const {
   return v.triangularView<Eigen::UnitUpper>().solve(w);
 }
 
+Eigen::VectorXcd ModalBasis::to_state(const Eigen::VectorXcd& y) const {
+  const Eigen::VectorXcd w = v.triangularView<Eigen::UnitUpper>() * y;
+  return scale.cast<Complex>().cwiseProduct(q * w);
+}
+
+Eigen::RowVectorXcd ModalBasis::output_row(const Eigen::RowVectorXcd& c) const {
+  const Eigen::RowVectorXcd w = c.cwiseProduct(scale.cast<Complex>().transpose()) * q;
+  return w * v.triangularView<Eigen::UnitUpper>();
+}
+
 ModalBasis decompose(const Eigen::MatrixXd& a, double span) {
   ModalBasis basis;
   basis.n = static_cast<int>(a.rows());
@@ -348,13 +361,12 @@ ModalBasis decompose(const Eigen::MatrixXd& a, double span) {
   for (int i = 0; i < basis.n; ++i)
     if (std::fabs(basis.t(i, i).real()) <= basis.rounding) basis.t(i, i).real(0.0);
 
-  std::vector<int> label = initial_labels(basis.t, span);
+  std::vector<int> label = initial_labels(basis.t);
   for (int round = 0;; ++round) {
     basis.clusters = group_clusters(basis.t, basis.q, label);
     basis.v = decoupling(basis.t, basis.clusters);
     if (round == kMergeRounds || !merge_coupled(basis.t, basis.v, basis.clusters, span, label)) break;
   }
-  basis.s = basis.scale.cast<Complex>().asDiagonal() * (basis.q * basis.v.triangularView<Eigen::UnitUpper>());
   const double v_norm = basis.v.cwiseAbs().colwise().sum().maxCoeff();
   basis.condition = basis.n == 0 ? 1.0 : v_norm * inverse_norm_estimate(basis.v);
   return basis;

@@ -3,7 +3,7 @@
 // state matrix, made of clusters of nearly equal eigenvalues, computed once per state matrix and
 // segment length and reused for every initial state and forcing (sweeps). Private.
 //
-//     A = D·Q·V · blockdiag(T_c) · V⁻¹·Q*·D⁻¹,    x = S·y with S = D·Q·V
+//     A = D·Q·V · blockdiag(T_c) · V⁻¹·Q*·D⁻¹,    x = D·Q·V·y
 //
 //   D  diagonal balancing, powers of 2 (exact), so that rows and columns of D⁻¹·A·D have
 //      comparable norms (Parlett & Reinsch, Numer. Math. 13, 1969; from memory)
@@ -14,12 +14,14 @@
 //      (Bavely & Stewart, Numer. Math. 32, 1979; from memory)
 //   T_c  the cluster's upper-triangular diagonal block of the Schur form
 //
-// Clusters: two eigenvalues join when |λᵢ − λⱼ|·L ≤ 1 (within a segment of length L their
-// exponentials are then expanded together as e^{μs}·Σ (N·s)^k/k!, N = T_c − μ·I, with at most e²
-// of cancellation) or when |λᵢ − λⱼ| ≤ 1e-6·max(|λᵢ|, |λⱼ|) (separating them would amplify
-// rounding by up to the inverse gap). After the Sylvester solutions are known, two clusters
+// Clusters: two eigenvalues join when |λᵢ − λⱼ| ≤ 1e-6·max(|λᵢ|, |λⱼ|) (separating them would
+// amplify rounding by up to the inverse gap); their exponentials are then expanded together as
+// e^{μs}·Σ (N·s)^k/k!, N = T_c − μ·I. After the Sylvester solutions are known, two clusters
 // whose coupling block of V exceeds max(1e3, e^{2R}) are merged as well, R the merged cluster's
-// radius times L: whichever of the two costs less accuracy is taken. Real parts of eigenvalues
+// radius times L (the series' cancellation is at most e^{2R}): whichever of the two costs less
+// accuracy is taken. Eigenvalues that are merely close compared with 1/L are not joined: where
+// the Schur form couples them weakly their separation costs nothing (a first version joined them
+// and, in a random 200-state matrix, chained most modes into one long series). Real parts of eigenvalues
 // below the backward error of the Schur form (8·n·ε·‖A‖) are set to 0, so that a lossless or
 // DC-isolated mode is exactly undamped (rounding would otherwise make it grow or decay); for the
 // same reason a forcing rate within that distance of a mode is taken as exactly resonant.
@@ -46,7 +48,6 @@ struct ModalBasis {
   Eigen::MatrixXcd q;            ///< Q
   Eigen::MatrixXcd t;            ///< the Schur form (upper triangular); its diagonal blocks are T_c
   Eigen::MatrixXcd v;            ///< V (unit upper triangular)
-  Eigen::MatrixXcd s;            ///< D·Q·V
   std::vector<Cluster> clusters;
   double condition = 1.0;        ///< estimate of ‖V‖₁·‖V⁻¹‖₁
   double rounding = 0.0;         ///< 8·n·ε·‖D⁻¹AD‖: eigenvalues are known to this, 1/s
@@ -57,9 +58,18 @@ struct ModalBasis {
   std::complex<double> eigenvalue(int i) const { return t(i, i); }
   /// y = V⁻¹·Q*·D⁻¹·x: modal coordinates of a state vector.
   Eigen::VectorXcd to_modal(const Eigen::VectorXcd& x) const;
+  /// x = D·Q·V·y: the state vector of modal coordinates.
+  Eigen::VectorXcd to_state(const Eigen::VectorXcd& y) const;
+  /// c·D·Q·V: the row that takes modal coordinates to the output c·x.
+  Eigen::RowVectorXcd output_row(const Eigen::RowVectorXcd& c) const;
 };
 
-/// Whether two rates (eigenvalues or forcing rates z = jω) belong together over a span L.
+/// Whether two eigenvalues are too close to be separated (1e-6 relative, or equal).
+bool modes_close(std::complex<double> a, std::complex<double> b);
+
+/// Whether a forcing rate z (0 or jω) is near an eigenvalue over a span L: |λ − z|·L ≤ 1, or
+/// modes_close. Such a forcing is carried inside the mode's solution instead of being divided by
+/// λ − z.
 bool rates_close(std::complex<double> a, std::complex<double> b, double span);
 
 /// Decomposes the state matrix `a` (n×n, real) for segments of length `span` (s).

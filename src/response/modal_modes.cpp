@@ -75,7 +75,9 @@ std::vector<Mode> modes_of(const Eigen::MatrixXd& a) {
 
 Eigen::MatrixXd transition_matrix(const ModalBasis& basis, double span, Accuracy* accuracy) {
   const Eigen::Index n = basis.n;
-  Eigen::MatrixXcd se = Eigen::MatrixXcd::Zero(n, n);  // S·blockdiag(e^{T_c·span})
+  // S = D·Q·V, then S·blockdiag(e^{T_c·span})·S⁻¹.
+  const Eigen::MatrixXcd s = basis.scale.cast<Complex>().asDiagonal() * (basis.q * basis.v.triangularView<Eigen::UnitUpper>());
+  Eigen::MatrixXcd se = Eigen::MatrixXcd::Zero(n, n);
   double amplification = 1.0;
   bool converged = true;
   for (const auto& cl : basis.clusters) {
@@ -91,7 +93,7 @@ Eigen::MatrixXd transition_matrix(const ModalBasis& basis, double span, Accuracy
       amplification = std::max(amplification, series.amplification);
       converged = converged && series.converged;
     }
-    se.middleCols(b, p) = basis.s.middleCols(b, p) * e;
+    se.middleCols(b, p) = s.middleCols(b, p) * e;
   }
   // Φ = S·E·S⁻¹, S⁻¹ = V⁻¹·Q*·D⁻¹.
   Eigen::MatrixXcd x = basis.v.triangularView<Eigen::UnitUpper>().solve<Eigen::OnTheRight>(se);

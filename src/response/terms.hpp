@@ -87,6 +87,11 @@ struct Response {
   double fastest_angular_frequency() const;
 };
 
+/// y at from + i·(to − from)/intervals, i = 0..intervals: a fast evaluation on a uniform grid,
+/// each exponential taken from a table of its one-step factor's powers between exact values, so
+/// that the error stays within a few dozen roundings of the direct `value`.
+std::vector<double> sample(const Response& y, double from, double to, std::size_t intervals);
+
 /// Today's one-state Wave as a Response, exactly: offset → C, drift → drift·φ(a, s),
 /// transient → transient·e^{a·s}, phasors unchanged.
 Response response_of_wave(const Wave& wave);
