@@ -346,6 +346,7 @@ ModalBasis decompose(const Eigen::MatrixXd& a, double span) {
     basis.reason = "the state matrix has a non-finite entry";
     return basis;
   }
+  if (basis.n == 0) return basis;
   Eigen::MatrixXd ab = a;
   basis.scale = balance(ab);
   Eigen::RealSchur<Eigen::MatrixXd> schur(ab, true);

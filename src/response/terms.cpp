@@ -186,15 +186,17 @@ double Response::fastest_angular_frequency() const {
 }
 
 std::vector<double> sample(const Response& y, double from, double to, std::size_t intervals) {
-  constexpr std::size_t kExactEvery = 128;  // samples per exactly computed anchor
+  constexpr std::size_t kExactEvery = 128;  // samples per block
+  constexpr std::size_t kBlocksExactEvery = 8;  // blocks per exactly computed start
   constexpr std::size_t kTableExactEvery = 16;
   const std::size_t count = intervals + 1;
   const double h = intervals > 0 ? (to - from) / static_cast<double>(intervals) : 0.0;
   std::vector<double> out(count, y.periodic.dc);
   // c·e^{r·(x0 + i·h)}·s_i^k. Within a block of 128 samples e^{r·j·h} comes from a table of the
-  // step's powers (products of at most 15 factors between exact values, so within ~16 roundings),
-  // so the samples are independent (no chain of products to wait on) and the inner loop is two
-  // products and a sum in real arithmetic.
+  // step's powers (at most 15 products from an exact value), and a block's start from the
+  // previous one's (at most 7 products from an exact value): within ~25 roundings, the samples
+  // independent (no chain of products to wait on), the inner loop two products and a sum in real
+  // arithmetic.
   std::vector<double> pr(kExactEvery), pi(kExactEvery);
   auto accumulate = [&](Complex c, Complex rate, double x0, int k) {
     const Complex step = std::exp(rate * h);
@@ -204,8 +206,11 @@ std::vector<double> sample(const Response& y, double from, double to, std::size_
       pr[j] = p.real();
       pi[j] = p.imag();
     }
-    for (std::size_t start = 0; start < count; start += kExactEvery) {
-      const Complex a = c * std::exp(rate * (x0 + h * static_cast<double>(start)));
+    const Complex block_step = std::exp(rate * (h * static_cast<double>(kExactEvery)));
+    Complex anchor = 0.0;
+    for (std::size_t start = 0, block = 0; start < count; start += kExactEvery, ++block) {
+      anchor = block % kBlocksExactEvery == 0 ? std::exp(rate * (x0 + h * static_cast<double>(start))) : anchor * block_step;
+      const Complex a = c * anchor;
       const double ar = a.real(), ai = a.imag();
       const std::size_t len = std::min(count - start, kExactEvery);
       double* o = out.data() + start;
