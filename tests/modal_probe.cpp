@@ -18,7 +18,8 @@ Eigen::MatrixXd matrix_of(const nlohmann::json& rows, Eigen::Index cols_if_empty
   const Eigen::Index m = n > 0 ? static_cast<Eigen::Index>(rows[0].size()) : cols_if_empty;
   Eigen::MatrixXd out(n, m);
   for (Eigen::Index i = 0; i < n; ++i)
-    for (Eigen::Index j = 0; j < m; ++j) out(i, j) = rows[static_cast<std::size_t>(i)][static_cast<std::size_t>(j)].get<double>();
+    for (Eigen::Index j = 0; j < m; ++j)
+      out(i, j) = rows[static_cast<std::size_t>(i)][static_cast<std::size_t>(j)].get<double>();
   return out;
 }
 

@@ -57,7 +57,8 @@ double worst_error(const ModalResponse& m, Ref&& reference, int points = 400) {
 
 // x(t) for dx/dt = A·x + b·u_dc from x0, in long double: the exponential of the matrix augmented
 // with the constant input as a state (an independent reference).
-Eigen::VectorXd reference_dc(const Eigen::MatrixXd& a, const Eigen::VectorXd& b, const Eigen::VectorXd& x0, double u, double t) {
+Eigen::VectorXd reference_dc(const Eigen::MatrixXd& a, const Eigen::VectorXd& b, const Eigen::VectorXd& x0, double u,
+                             double t) {
   const Eigen::Index n = a.rows();
   LongMatrix m = LongMatrix::Zero(n + 1, n + 1);
   m.topLeftCorner(n, n) = a.cast<long double>() * static_cast<long double>(t);
@@ -144,7 +145,8 @@ TEST_CASE("a 1 H, 10 ohm coil opening into a 10 nF snubber matches the analytic 
   const Eigen::MatrixXd b = Eigen::MatrixXd::Zero(2, 1);
   const ModalResponse m = solve_modal(a, b, Eigen::Vector2d(i0, 0.0), {Drive{}}, 0.0, 2e-3);
   REQUIRE(m.accuracy().ok);
-  const long double alpha = r / (2 * l), w0sq = 1.0L / (static_cast<long double>(l) * c), wd = std::sqrt(w0sq - alpha * alpha);
+  const long double alpha = r / (2 * l), w0sq = 1.0L / (static_cast<long double>(l) * c),
+                    wd = std::sqrt(w0sq - alpha * alpha);
   const long double di0 = -r * i0 / l;
   auto reference = [&](double t) {
     const long double e = std::exp(-alpha * t), cw = std::cos(wd * t), sw = std::sin(wd * t);
@@ -203,7 +205,8 @@ TEST_CASE("a leak of 1e15 ohm gives the exact near-drift, not a cancellation of 
   REQUIRE(m.accuracy().ok);
   const long double tau = static_cast<long double>(r) * c;
   const double err = worst_error(m, [&](double t) {
-    return Eigen::VectorXd::Constant(1, static_cast<double>(v0 * std::exp(-t / tau) - cur * static_cast<long double>(r) * std::expm1(-t / tau)));
+    return Eigen::VectorXd::Constant(
+        1, static_cast<double>(v0 * std::exp(-t / tau) - cur * static_cast<long double>(r) * std::expm1(-t / tau)));
   });
   INFO("near drift, max relative error " << err);
   CHECK(err <= 1e-14);
@@ -219,11 +222,14 @@ TEST_CASE("a lossless LC driven at its own frequency grows as (U*w/2)*t*sin(wt)"
   const SeriesRlc lc{0.0, l, c};
   const ModalResponse m = solve_modal(lc.a(), lc.b(), Eigen::Vector2d::Zero(), {cosine(u, w0 / (2 * kPi))}, 0.0, 0.02);
   REQUIRE(m.accuracy().ok);
-  const double err = worst_error(m, [&](double t) {
-    const double v = 0.5 * u * w0 * t * std::sin(w0 * t);
-    const double i = c * 0.5 * u * w0 * (std::sin(w0 * t) + w0 * t * std::cos(w0 * t));
-    return Eigen::Vector2d(i, v);
-  }, 4000);
+  const double err = worst_error(
+      m,
+      [&](double t) {
+        const double v = 0.5 * u * w0 * t * std::sin(w0 * t);
+        const double i = c * 0.5 * u * w0 * (std::sin(w0 * t) + w0 * t * std::cos(w0 * t));
+        return Eigen::Vector2d(i, v);
+      },
+      4000);
   INFO("resonance, max relative error " << err);
   CHECK(err <= 1e-12);
   CHECK_FALSE(m.state(1).steady_state().has_value());
@@ -266,7 +272,8 @@ TEST_CASE("a nearly defective 3x3 with eigenvalues 1e-9 apart matches a long-dou
   const Eigen::Vector3d x0(1.0, -2.0, 0.5), b(0.0, 1.0, 1.0);
   const ModalResponse m = solve_modal(a, b, x0, {dc(3.0)}, 0.0, 6.0);
   REQUIRE(m.accuracy().ok);
-  const double err = worst_error(m, [&](double t) { return reference_dc(a, b, x0, 3.0, t); }, 60);
+  const double err = worst_error(
+      m, [&](double t) { return reference_dc(a, b, x0, 3.0, t); }, 60);
   INFO("nearly defective 3x3, max relative error " << err);
   CHECK(err <= 1e-10);
 }
@@ -296,10 +303,13 @@ TEST_CASE("a 200-state random stable system matches a long-double exponential", 
   state.head(n) = x0.cast<long double>();
   state(n) = 1.0L;
   int done = 0;
-  const double err = worst_error(m, [&](double t) {
-    for (; done < std::lround(t / h); ++done) state = step * state;
-    return Eigen::VectorXd(state.head(n).cast<double>());
-  }, steps);
+  const double err = worst_error(
+      m,
+      [&](double t) {
+        for (; done < std::lround(t / h); ++done) state = step * state;
+        return Eigen::VectorXd(state.head(n).cast<double>());
+      },
+      steps);
   INFO("200 states, max relative error " << err << ", estimate " << m.accuracy().estimated_error);
   CHECK(err <= 1e-10);
 }
@@ -307,7 +317,11 @@ TEST_CASE("a 200-state random stable system matches a long-double exponential", 
 TEST_CASE("an output C*x + D*u is the same combination of the states and inputs", "[modal]") {
   // Reference: the definition y = C·x + D·u at sample times.
   const SeriesRlc rlc{3.0, 1e-3, 1e-6};
-  const Drive u = [] { Drive d = cosine(5.0, 700.0); d.dc = 2.0; return d; }();
+  const Drive u = [] {
+    Drive d = cosine(5.0, 700.0);
+    d.dc = 2.0;
+    return d;
+  }();
   const ModalResponse m = solve_modal(rlc.a(), rlc.b(), Eigen::Vector2d(0.1, -4.0), {u}, 0.01, 0.03);
   const Eigen::RowVector2d c(3.0, -1.0);
   const Eigen::RowVectorXd d = Eigen::RowVectorXd::Constant(1, 0.5);
@@ -323,7 +337,8 @@ TEST_CASE("a matrix whose eigenvectors are nearly parallel is flagged instead of
   CHECK_FALSE(m.accuracy().ok);
   CHECK(m.accuracy().reason.find("estimated relative error") != std::string::npos);
   const Eigen::Matrix2d nan_a{{std::nan(""), 0.0}, {0.0, -1.0}};
-  const ModalResponse bad = solve_modal(nan_a, Eigen::MatrixXd::Zero(2, 1), Eigen::Vector2d(1.0, 1.0), {Drive{}}, 0.0, 1.0);
+  const ModalResponse bad =
+      solve_modal(nan_a, Eigen::MatrixXd::Zero(2, 1), Eigen::Vector2d(1.0, 1.0), {Drive{}}, 0.0, 1.0);
   CHECK_FALSE(bad.accuracy().ok);
   CHECK(bad.accuracy().reason == "the state matrix has a non-finite entry");
 }
@@ -357,8 +372,10 @@ TEST_CASE("the transition matrix of a badly scaled snubber matches Schur-Parlett
   Eigen::MatrixXd ab = a;
   const Eigen::VectorXd d = balance(ab);
   for (double t : {1e-5, 3.3e-4, 1e-3}) {
-    const Eigen::MatrixXd want = d.asDiagonal() * Eigen::MatrixXd((ab * t).matrixFunction(Eigen::internal::stem_function_exp<std::complex<double>>)) *
-                                 d.cwiseInverse().asDiagonal();
+    const Eigen::MatrixXd want =
+        d.asDiagonal() *
+        Eigen::MatrixXd((ab * t).matrixFunction(Eigen::internal::stem_function_exp<std::complex<double>>)) *
+        d.cwiseInverse().asDiagonal();
     const Eigen::MatrixXd got = transition_matrix(decompose(a, t), t);
     for (int i = 0; i < 2; ++i)
       for (int k = 0; k < 2; ++k) {
@@ -368,7 +385,8 @@ TEST_CASE("the transition matrix of a badly scaled snubber matches Schur-Parlett
   }
 }
 
-TEST_CASE("a double integrator under DC gives the exact parabola through a cluster that carries the forcing", "[modal]") {
+TEST_CASE("a double integrator under DC gives the exact parabola through a cluster that carries the forcing",
+          "[modal]") {
   // Reference: x₂ = x₂₀ + u·t, x₁ = x₁₀ + x₂₀·t + u·t²/2 (integration, by hand): the eigenvalue 0
   // is double and the DC rate sits on it, so the forcing joins the cluster as an extra state.
   const Eigen::Matrix2d a{{0.0, 1.0}, {0.0, 0.0}};
@@ -398,11 +416,14 @@ TEST_CASE("two identical lossless tanks driven at resonance both grow as t*sin(w
   b.bottomRows(2) = 2.0 * lc.b();
   const ModalResponse m = solve_modal(a, b, Eigen::Vector4d::Zero(), {cosine(u, w0 / (2 * kPi))}, 0.0, 0.01);
   REQUIRE(m.accuracy().ok);
-  const double err = worst_error(m, [&](double t) {
-    const double v = 0.5 * u * w0 * t * std::sin(w0 * t);
-    const double i = c * 0.5 * u * w0 * (std::sin(w0 * t) + w0 * t * std::cos(w0 * t));
-    return Eigen::Vector4d(i, v, 2 * i, 2 * v);
-  }, 2000);
+  const double err = worst_error(
+      m,
+      [&](double t) {
+        const double v = 0.5 * u * w0 * t * std::sin(w0 * t);
+        const double i = c * 0.5 * u * w0 * (std::sin(w0 * t) + w0 * t * std::cos(w0 * t));
+        return Eigen::Vector4d(i, v, 2 * i, 2 * v);
+      },
+      2000);
   INFO("repeated resonance, max relative error " << err);
   CHECK(err <= 1e-12);
 }

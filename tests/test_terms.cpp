@@ -64,7 +64,8 @@ Response mixed_response() {
 TEST_CASE("phi is (e^{ds} - 1)/d to rounding even where d*s is tiny or d is complex", "[response]") {
   // Reference: the same definition in long double with expm1l (from memory: expm1 avoids the
   // cancellation of e^x − 1 near 0).
-  for (Complex d : {Complex(1e-14, 0.0), Complex(-3e-9, 2e-9), Complex(0.7, -4.0), Complex(-30.0, 0.0), Complex(0.0, 1e-12)}) {
+  for (Complex d :
+       {Complex(1e-14, 0.0), Complex(-3e-9, 2e-9), Complex(0.7, -4.0), Complex(-30.0, 0.0), Complex(0.0, 1e-12)}) {
     for (double s : {1e-6, 0.3, 2.0}) {
       Term t{1.0, 0.0, 0, true, d};
       const Complex got = phi(d, s);
@@ -77,7 +78,8 @@ TEST_CASE("phi is (e^{ds} - 1)/d to rounding even where d*s is tiny or d is comp
   CHECK(phi(0.0, 1.5) == Complex(1.5, 0.0));
 }
 
-TEST_CASE("a one-state Wave becomes a Response with the same values, slopes, integrals and steady state", "[response]") {
+TEST_CASE("a one-state Wave becomes a Response with the same values, slopes, integrals and steady state",
+          "[response]") {
   // Reference: the existing Wave closed form (include/netfold/closed_form.hpp), an independent
   // implementation; the drift with a = 0 is the ramp s (its definition).
   Drive forcing;
@@ -107,7 +109,9 @@ TEST_CASE("the derivatives of every kind of term match long-double differences o
   const long double h = 1e-4L;
   for (double t : {0.4, 1.0, 2.0}) {
     auto f = [&](long double x) { return response_long(y, x); };
-    auto diff = [&](auto g, long double x) { return (-g(x + 2 * h) + 8 * g(x + h) - 8 * g(x - h) + g(x - 2 * h)) / (12 * h); };
+    auto diff = [&](auto g, long double x) {
+      return (-g(x + 2 * h) + 8 * g(x + h) - 8 * g(x - h) + g(x - 2 * h)) / (12 * h);
+    };
     const long double d1 = diff(f, t);
     const long double d2 = diff([&](long double x) { return diff(f, x); }, t);
     INFO("t = " << t);
@@ -117,12 +121,14 @@ TEST_CASE("the derivatives of every kind of term match long-double differences o
   }
 }
 
-TEST_CASE("the integral of s^k e^{zs} is exact for small and large |z h| against long-double quadrature", "[response]") {
+TEST_CASE("the integral of s^k e^{zs} is exact for small and large |z h| against long-double quadrature",
+          "[response]") {
   // Reference: 20-point Gauss–Legendre over 4000 panels in long double (textbook quadrature).
   // The tolerance is relative to ∫|s^k e^{zs}| ds, the scale the integral's rounding lives on.
   for (int k : {0, 1, 3, 8, 20}) {
-    for (Complex z : {Complex(0.0, 0.0), Complex(1e-9, 0.0), Complex(-0.5, 0.0), Complex(3.0, 0.0), Complex(-40.0, 0.0),
-                      Complex(0.0, 25.0), Complex(-3.0, 40.0), Complex(18.0, -7.0), Complex(-200.0, 0.0), Complex(-15.0, 12.0)}) {
+    for (Complex z :
+         {Complex(0.0, 0.0), Complex(1e-9, 0.0), Complex(-0.5, 0.0), Complex(3.0, 0.0), Complex(-40.0, 0.0),
+          Complex(0.0, 25.0), Complex(-3.0, 40.0), Complex(18.0, -7.0), Complex(-200.0, 0.0), Complex(-15.0, 12.0)}) {
       for (auto [s0, s1] : {std::pair{0.0, 1.0}, std::pair{0.3, 1.7}}) {
         const LongComplex zl(z.real(), z.imag());
         auto f = [&](long double s) { return std::pow(s, static_cast<long double>(k)) * std::exp(zl * s); };
@@ -158,15 +164,17 @@ TEST_CASE("integrals of a response and of a product of two responses are exact",
 TEST_CASE("the steady state keeps undamped terms and refuses drifts, growth and local series", "[response]") {
   // Reference: the limits of each term as s → ∞ (calculus).
   Response y = constant_response(1.0, 2.0, 2.0);
-  y.add_term({{3.0, 0.0}, {-1.0, 0.0}, 4, false, 0.0});           // decays
-  y.add_term({{0.0, 2.0}, {0.0, -10.0}, 0, false, 0.0});          // lossless mode, written with Im z < 0
-  y.add_term({{0.5, 0.0}, {0.0, 0.0}, 0, true, {-4.0, 0.0}});     // drift towards 0.5/4
+  y.add_term({{3.0, 0.0}, {-1.0, 0.0}, 4, false, 0.0});        // decays
+  y.add_term({{0.0, 2.0}, {0.0, -10.0}, 0, false, 0.0});       // lossless mode, written with Im z < 0
+  y.add_term({{0.5, 0.0}, {0.0, 0.0}, 0, true, {-4.0, 0.0}});  // drift towards 0.5/4
   auto s = y.steady_state();
   REQUIRE(s.has_value());
   CHECK_REL(s->dc, 2.0 + 0.5 / 4.0, 1e-15);
   REQUIRE(s->phasors.size() == 1);
   CHECK_REL(s->phasors[0].frequency, 10.0 / (2 * kPi), 1e-15);
-  for (double t : {1.0, 1.3}) CHECK_REL(s->value(t) - 2.125, Complex(Complex(0.0, 2.0) * std::exp(Complex(0.0, -10.0) * (t - 1.0))).real(), 1e-13);
+  for (double t : {1.0, 1.3})
+    CHECK_REL(s->value(t) - 2.125, Complex(Complex(0.0, 2.0) * std::exp(Complex(0.0, -10.0) * (t - 1.0))).real(),
+              1e-13);
 
   Response ramp = y;
   ramp.add_term({{1.0, 0.0}, {0.0, 0.0}, 0, true, 0.0});  // φ(0, s) = s

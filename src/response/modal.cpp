@@ -11,8 +11,8 @@ namespace netfold::response {
 namespace {
 
 constexpr double kEps = std::numeric_limits<double>::epsilon();
-constexpr double kErrorFactor = 16.0;  // the estimate's constant: rounding of a few operations
-constexpr double kMaxExponent = 700.0; // e^{Re λ·L} beyond this leaves double range
+constexpr double kErrorFactor = 16.0;   // the estimate's constant: rounding of a few operations
+constexpr double kMaxExponent = 700.0;  // e^{Re λ·L} beyond this leaves double range
 
 // One forcing rate: DC (z = 0) or a phasor frequency (z = jω), for every input at once.
 struct Forcing {

@@ -90,9 +90,9 @@ std::vector<Mode> modes_of(const Eigen::MatrixXd& a);
 
 /// One term shape with its coefficients in the modal coordinates of one cluster.
 struct ModalTerm {
-  Term shape;             ///< c unused (1)
-  Eigen::Index begin = 0; ///< the cluster's first modal coordinate
-  Eigen::VectorXcd coef;  ///< the coefficient of each of the cluster's coordinates
+  Term shape;              ///< c unused (1)
+  Eigen::Index begin = 0;  ///< the cluster's first modal coordinate
+  Eigen::VectorXcd coef;   ///< the coefficient of each of the cluster's coordinates
 };
 
 /// The responses of every state of one segment, and of any output y = C·x + D·u. Kept in modal
@@ -145,8 +145,8 @@ Eigen::MatrixXd transition_matrix(const ModalBasis& basis, double span, Accuracy
 
 /// The state that repeats after one period.
 struct PeriodicState {
-  Eigen::VectorXd x;        ///< x* = (I − Φ)⁻¹·β
-  double condition = 1.0;   ///< estimate of ‖(I − Φ)⁻¹‖₁·(1 + ‖Φ‖₁)
+  Eigen::VectorXd x;       ///< x* = (I − Φ)⁻¹·β
+  double condition = 1.0;  ///< estimate of ‖(I − Φ)⁻¹‖₁·(1 + ‖Φ‖₁)
   Accuracy accuracy;
 };
 

@@ -226,15 +226,14 @@ bool merge_coupled(const Eigen::MatrixXcd& t, const Eigen::MatrixXcd& v, const s
     }
   }
   if (!merged) return false;
-  for (int i = 0; i < n; ++i) label[static_cast<std::size_t>(i)] = find_root(parent, owner[static_cast<std::size_t>(i)]);
+  for (int i = 0; i < n; ++i)
+    label[static_cast<std::size_t>(i)] = find_root(parent, owner[static_cast<std::size_t>(i)]);
   return true;
 }
 
 }  // namespace
 
-bool modes_close(Complex a, Complex b) {
-  return std::abs(a - b) <= kRelativeGap * std::max(std::abs(a), std::abs(b));
-}
+bool modes_close(Complex a, Complex b) { return std::abs(a - b) <= kRelativeGap * std::max(std::abs(a), std::abs(b)); }
 
 bool rates_close(Complex a, Complex b, double span) {
   const double by_span = (span > 0.0 && std::isfinite(span)) ? kSpanGap / span : 0.0;

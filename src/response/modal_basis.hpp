@@ -42,17 +42,17 @@ struct Cluster {
 
 /// The block-diagonal form of one state matrix for segments of one length (see the file comment).
 struct ModalBasis {
-  int n = 0;                     ///< number of states
-  double span = 0.0;             ///< segment length L the clusters were chosen for, s
-  Eigen::VectorXd scale;         ///< D
-  Eigen::MatrixXcd q;            ///< Q
-  Eigen::MatrixXcd t;            ///< the Schur form (upper triangular); its diagonal blocks are T_c
-  Eigen::MatrixXcd v;            ///< V (unit upper triangular)
+  int n = 0;              ///< number of states
+  double span = 0.0;      ///< segment length L the clusters were chosen for, s
+  Eigen::VectorXd scale;  ///< D
+  Eigen::MatrixXcd q;     ///< Q
+  Eigen::MatrixXcd t;     ///< the Schur form (upper triangular); its diagonal blocks are T_c
+  Eigen::MatrixXcd v;     ///< V (unit upper triangular)
   std::vector<Cluster> clusters;
-  double condition = 1.0;        ///< estimate of ‖V‖₁·‖V⁻¹‖₁
-  double rounding = 0.0;         ///< 8·n·ε·‖D⁻¹AD‖: eigenvalues are known to this, 1/s
-  bool ok = true;                ///< false when the Schur form could not be computed
-  std::string reason;            ///< why, when not ok
+  double condition = 1.0;  ///< estimate of ‖V‖₁·‖V⁻¹‖₁
+  double rounding = 0.0;   ///< 8·n·ε·‖D⁻¹AD‖: eigenvalues are known to this, 1/s
+  bool ok = true;          ///< false when the Schur form could not be computed
+  std::string reason;      ///< why, when not ok
 
   /// The eigenvalue at position i of the Schur form, 1/s.
   std::complex<double> eigenvalue(int i) const { return t(i, i); }

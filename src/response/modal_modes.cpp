@@ -37,9 +37,8 @@ Mode mode_of(Complex lambda) {
 // 1e-6 relative counted once, slowest (largest real part) first.
 std::vector<Mode> modes_from(std::vector<Complex> lambdas) {
   std::erase_if(lambdas, [](Complex l) { return l.imag() < 0.0; });
-  std::sort(lambdas.begin(), lambdas.end(), [](Complex a, Complex b) {
-    return a.real() != b.real() ? a.real() > b.real() : a.imag() < b.imag();
-  });
+  std::sort(lambdas.begin(), lambdas.end(),
+            [](Complex a, Complex b) { return a.real() != b.real() ? a.real() > b.real() : a.imag() < b.imag(); });
   std::vector<Mode> modes;
   for (Complex l : lambdas) {
     if (!modes.empty() && rates_close(modes.back().eigenvalue, l, 0.0)) {
@@ -76,7 +75,8 @@ std::vector<Mode> modes_of(const Eigen::MatrixXd& a) {
 Eigen::MatrixXd transition_matrix(const ModalBasis& basis, double span, Accuracy* accuracy) {
   const Eigen::Index n = basis.n;
   // S = D·Q·V, then S·blockdiag(e^{T_c·span})·S⁻¹.
-  const Eigen::MatrixXcd s = basis.scale.cast<Complex>().asDiagonal() * (basis.q * basis.v.triangularView<Eigen::UnitUpper>());
+  const Eigen::MatrixXcd s =
+      basis.scale.cast<Complex>().asDiagonal() * (basis.q * basis.v.triangularView<Eigen::UnitUpper>());
   Eigen::MatrixXcd se = Eigen::MatrixXcd::Zero(n, n);
   double amplification = 1.0;
   bool converged = true;
@@ -88,7 +88,8 @@ Eigen::MatrixXd transition_matrix(const ModalBasis& basis, double span, Accuracy
     } else {
       const auto series = exponential_series(basis.t.block(b, b, p, p), Eigen::MatrixXcd::Identity(p, p), p, span);
       e = Eigen::MatrixXcd::Zero(p, p);
-      for (std::size_t k = 0; k < series.coefs.size(); ++k) e += series.coefs[k] * std::pow(span, static_cast<double>(k));
+      for (std::size_t k = 0; k < series.coefs.size(); ++k)
+        e += series.coefs[k] * std::pow(span, static_cast<double>(k));
       e *= std::exp(series.centre * span);
       amplification = std::max(amplification, series.amplification);
       converged = converged && series.converged;
@@ -102,7 +103,7 @@ Eigen::MatrixXd transition_matrix(const ModalBasis& basis, double span, Accuracy
   Eigen::MatrixXd phi = (x * inverse_scale.cast<Complex>().asDiagonal()).real();
   if (accuracy) {
     accuracy->estimated_error = 16.0 * kEps * basis.condition * amplification;
-    accuracy->reason = !basis.ok ? basis.reason
+    accuracy->reason = !basis.ok    ? basis.reason
                        : !converged ? "the series of a cluster of nearly equal modes did not converge over the span"
                                     : "";
     accuracy->ok = accuracy->reason.empty();
@@ -120,7 +121,8 @@ PeriodicState periodic_state(const Eigen::MatrixXd& phi, const Eigen::VectorXd& 
   // undamped mode): the amplification is ‖(I − Φ)⁻¹‖·(1 + ‖Φ‖).
   const double m_norm = m.cwiseAbs().colwise().sum().maxCoeff();
   const double phi_norm = phi.cwiseAbs().colwise().sum().maxCoeff();
-  out.condition = rcond > 0.0 && m_norm > 0.0 ? (1.0 + phi_norm) / (rcond * m_norm) : std::numeric_limits<double>::infinity();
+  out.condition =
+      rcond > 0.0 && m_norm > 0.0 ? (1.0 + phi_norm) / (rcond * m_norm) : std::numeric_limits<double>::infinity();
   out.accuracy.estimated_error = 4.0 * kEps * out.condition;
   if (!std::isfinite(out.condition) || !phi.allFinite() || !beta.allFinite()) {
     out.x = Eigen::VectorXd::Zero(n);

@@ -27,9 +27,7 @@ double power(double s, int n) {
 }
 
 // The sort key of a term: terms with equal keys add up.
-auto key_of(const Term& t) {
-  return std::make_tuple(t.z.real(), t.z.imag(), t.k, t.has_phi, t.d.real(), t.d.imag());
-}
+auto key_of(const Term& t) { return std::make_tuple(t.z.real(), t.z.imag(), t.k, t.has_phi, t.d.real(), t.d.imag()); }
 
 // Re(w) = Re(conj w): keep the representative with Im z ≥ 0 (then Im d ≥ 0 for real z), and
 // write φ(0, s)·s^k as the plain s^{k+1}.
@@ -129,8 +127,8 @@ std::optional<Drive> Response::steady_state() const {
     return true;
   };
   for (const auto& t : terms) {
-    bool ok = t.has_phi ? add_part(t.c / t.d, t.z + t.d, t.k) && add_part(-t.c / t.d, t.z, t.k)
-                        : add_part(t.c, t.z, t.k);
+    bool ok =
+        t.has_phi ? add_part(t.c / t.d, t.z + t.d, t.k) && add_part(-t.c / t.d, t.z, t.k) : add_part(t.c, t.z, t.k);
     if (!ok) return std::nullopt;
   }
   return steady;
@@ -186,7 +184,7 @@ double Response::fastest_angular_frequency() const {
 }
 
 std::vector<double> sample(const Response& y, double from, double to, std::size_t intervals) {
-  constexpr std::size_t kExactEvery = 128;  // samples per block
+  constexpr std::size_t kExactEvery = 128;      // samples per block
   constexpr std::size_t kBlocksExactEvery = 8;  // blocks per exactly computed start
   constexpr std::size_t kTableExactEvery = 16;
   const std::size_t count = intervals + 1;
@@ -209,7 +207,8 @@ std::vector<double> sample(const Response& y, double from, double to, std::size_
     const Complex block_step = std::exp(rate * (h * static_cast<double>(kExactEvery)));
     Complex anchor = 0.0;
     for (std::size_t start = 0, block = 0; start < count; start += kExactEvery, ++block) {
-      anchor = block % kBlocksExactEvery == 0 ? std::exp(rate * (x0 + h * static_cast<double>(start))) : anchor * block_step;
+      anchor =
+          block % kBlocksExactEvery == 0 ? std::exp(rate * (x0 + h * static_cast<double>(start))) : anchor * block_step;
       const Complex a = c * anchor;
       const double ar = a.real(), ai = a.imag();
       const std::size_t len = std::min(count - start, kExactEvery);

@@ -56,7 +56,8 @@ std::vector<Complex> unit_moments(int k, Complex w) {
   const Complex ew = std::exp(w);
   const int j_up = std::min(k, static_cast<int>(std::floor(aw)));
   e[0] = expm1_of(w) / w;
-  for (int j = 1; j <= j_up; ++j) e[static_cast<std::size_t>(j)] = (ew - static_cast<double>(j) * e[static_cast<std::size_t>(j - 1)]) / w;
+  for (int j = 1; j <= j_up; ++j)
+    e[static_cast<std::size_t>(j)] = (ew - static_cast<double>(j) * e[static_cast<std::size_t>(j - 1)]) / w;
   if (j_up == k) return e;
   const int j_low = j_up + 1;  // > |w|
   // The start E_J0 ≈ e^w/(J0 + 1) is off by at most about e^{Re w}, the scale of E_j itself
