@@ -453,3 +453,21 @@ TEST_CASE("a mode that grows beyond double range over the segment is flagged", "
   CHECK_FALSE(m.accuracy().ok);
   CHECK(m.accuracy().reason == "a mode grows by e^800 over the segment, beyond double range");
 }
+
+TEST_CASE("a series RLC on a sine settles to the phasor current V/Z with the impedance's phase", "[modal]") {
+  // Source: phasor analysis of a series RLC, I = V/(R + j(ωL − 1/ωC)) (textbook).
+  const double r = 4.0, l = 20e-3, c = 47e-6, v = 230.0 * std::sqrt(2.0), f = 50.0, w = 2 * kPi * f;
+  const SeriesRlc rlc{r, l, c};
+  const ModalResponse m = solve_modal(rlc.a(), rlc.b(), Eigen::Vector2d(1.0, -30.0), {cosine(v, f)}, 0.013, 0.2);
+  REQUIRE(m.accuracy().ok);
+  const auto steady = m.state(0).steady_state();
+  REQUIRE(steady.has_value());
+  REQUIRE(steady->phasors.size() == 1);
+  const std::complex<double> want = v / std::complex<double>(r, w * l - 1.0 / (w * c));
+  CHECK_REL(steady->phasors[0].value.real(), want.real(), 1e-12);
+  CHECK_REL(steady->phasors[0].value.imag(), want.imag(), 1e-12);
+  CHECK(std::fabs(steady->dc) <= 1e-12 * std::abs(want));
+  // Long after the transient (τ = 2L/R = 10 ms, 18.7 τ later: e^{−18.7} ≈ 8e-9 of it is left)
+  // the response is the phasor.
+  CHECK(std::fabs(m.state(0).value(0.2) - steady->value(0.2)) <= 1e-6 * std::abs(want));
+}
