@@ -8,6 +8,8 @@
 
 #include <Eigen/Eigenvalues>
 
+#include "response/real_schur.hpp"
+
 namespace netfold::response {
 
 namespace {
@@ -348,14 +350,14 @@ ModalBasis decompose(const Eigen::MatrixXd& a, double span) {
   if (basis.n == 0) return basis;
   Eigen::MatrixXd ab = a;
   basis.scale = balance(ab);
-  Eigen::RealSchur<Eigen::MatrixXd> schur(ab, true);
-  if (schur.info() != Eigen::Success) {
+  Eigen::MatrixXd t_real, z_real;
+  if (!real_schur(ab, t_real, z_real)) {
     basis.ok = false;
     basis.reason = "the eigenvalues of the state matrix could not be computed (Schur iteration did not converge)";
     return basis;
   }
-  basis.t = schur.matrixT().cast<Complex>();
-  basis.q = schur.matrixU().cast<Complex>();
+  basis.t = t_real.cast<Complex>();
+  basis.q = z_real.cast<Complex>();
   make_complex(basis.t, basis.q);
   basis.rounding = 8.0 * basis.n * kEps * ab.norm();
   for (int i = 0; i < basis.n; ++i)

@@ -7,9 +7,10 @@
 //
 //   D  diagonal balancing, powers of 2 (exact), so that rows and columns of D⁻¹·A·D have
 //      comparable norms (Parlett & Reinsch, Numer. Math. 13, 1969; from memory)
-//   Q  unitary: the complex Schur vectors of the balanced matrix (real Schur form by Eigen,
-//      turned complex 2×2 block by 2×2 block so that conjugate eigenvalues stay exactly
-//      conjugate), reordered so that each cluster is contiguous (Givens swaps of neighbours)
+//   Q  unitary: the complex Schur vectors of the balanced matrix (real Schur form by
+//      real_schur.hpp, turned complex 2×2 block by 2×2 block so that conjugate eigenvalues stay
+//      exactly conjugate), reordered so that each cluster is contiguous (Givens swaps of
+//      neighbours)
 //   V  unit upper triangular: the Sylvester solutions that decouple the clusters
 //      (Bavely & Stewart, Numer. Math. 32, 1979; from memory)
 //   T_c  the cluster's upper-triangular diagonal block of the Schur form
