@@ -471,3 +471,26 @@ TEST_CASE("a series RLC on a sine settles to the phasor current V/Z with the imp
   // the response is the phasor.
   CHECK(std::fabs(m.state(0).value(0.2) - steady->value(0.2)) <= 1e-6 * std::abs(want));
 }
+
+TEST_CASE("the modes of a state matrix alone are those of its full decomposition", "[modal]") {
+  // Reference: the textbook second-order figures (as above) and the eigenvalues of the full
+  // decomposition, computed with the Schur vectors.
+  const SeriesRlc rlc{6.0, 2e-3, 4.7e-6};
+  const auto modes = modes_of(rlc.a());
+  REQUIRE(modes.size() == 1);
+  CHECK_REL(modes[0].natural_frequency, 1.0 / (2 * kPi * std::sqrt(2e-3 * 4.7e-6)), 1e-13);
+  CHECK_REL(modes[0].damping_ratio, 3.0 * std::sqrt(4.7e-6 / 2e-3), 1e-13);
+  std::mt19937_64 rng(7);
+  std::normal_distribution<double> normal;
+  Eigen::MatrixXd a(40, 40);
+  for (int i = 0; i < 40; ++i)
+    for (int k = 0; k < 40; ++k) a(i, k) = normal(rng);
+  a.col(3).setZero();  // a state that drives no derivative: λ = 0
+  const auto alone = modes_of(a), full = modes_of(decompose(a, 1.0));
+  REQUIRE(alone.size() == full.size());
+  for (std::size_t i = 0; i < alone.size(); ++i) {
+    CHECK(std::abs(alone[i].eigenvalue - full[i].eigenvalue) <= 1e-12 * a.norm());
+    CHECK(alone[i].multiplicity == full[i].multiplicity);
+  }
+  CHECK(std::any_of(alone.begin(), alone.end(), [](const Mode& m) { return std::isinf(m.time_constant); }));
+}

@@ -7,10 +7,10 @@
 #include <limits>
 #include <numbers>
 
-#include <Eigen/Eigenvalues>
 #include <Eigen/LU>
 
 #include "response/modal.hpp"
+#include "response/real_schur.hpp"
 
 namespace netfold::response {
 
@@ -61,13 +61,21 @@ std::vector<Mode> modes_of(const ModalBasis& basis) {
 std::vector<Mode> modes_of(const Eigen::MatrixXd& a) {
   Eigen::MatrixXd ab = a;
   balance(ab);
-  Eigen::EigenSolver<Eigen::MatrixXd> solver(ab, false);
-  if (solver.info() != Eigen::Success) return {};
+  Eigen::MatrixXd t, unused;
+  if (!ab.allFinite() || !real_schur(ab, t, unused, false)) return {};
   const double floor = 8.0 * static_cast<double>(a.rows()) * kEps * ab.norm();
   std::vector<Complex> lambdas;
-  for (Complex l : solver.eigenvalues()) {
-    if (std::fabs(l.real()) <= floor) l.real(0.0);
-    lambdas.push_back(l);
+  for (Eigen::Index i = 0; i < t.rows(); ++i) {
+    if (i + 1 < t.rows() && t(i + 1, i) != 0.0) {  // a complex pair, as in make_complex
+      const double p = 0.5 * (t(i, i) - t(i + 1, i + 1));
+      const double im = std::sqrt(std::max(-(p * p + t(i, i + 1) * t(i + 1, i)), 0.0));
+      const double re = std::fabs(t(i + 1, i + 1) + p) <= floor ? 0.0 : t(i + 1, i + 1) + p;
+      lambdas.emplace_back(re, im);
+      lambdas.emplace_back(re, -im);
+      ++i;
+    } else {
+      lambdas.emplace_back(std::fabs(t(i, i)) <= floor ? 0.0 : t(i, i), 0.0);
+    }
   }
   return modes_from(std::move(lambdas));
 }

@@ -83,7 +83,7 @@ void francis_sweep(Eigen::MatrixXd& h, Eigen::MatrixXd& z, Eigen::Index l, Eigen
     if (!r.identity) {
       apply_left<true>(h, r, k, std::max(l, k - 1), n);
       apply_right<true>(h, r, k, std::min(k + 3, p) + 1);
-      apply_right<true>(z, r, k, n);
+      if (z.size() > 0) apply_right<true>(z, r, k, n);
     }
     if (k > l) h(k + 1, k - 1) = h(k + 2, k - 1) = 0.0;  // the bulge moved on
     x = h(k + 1, k);
@@ -94,7 +94,7 @@ void francis_sweep(Eigen::MatrixXd& h, Eigen::MatrixXd& z, Eigen::Index l, Eigen
   if (!r.identity) {
     apply_left<false>(h, r, p - 1, p - 2, n);
     apply_right<false>(h, r, p - 1, p + 1);
-    apply_right<false>(z, r, p - 1, n);
+    if (z.size() > 0) apply_right<false>(z, r, p - 1, n);
   }
   h(p, p - 2) = 0.0;
 }
@@ -122,17 +122,17 @@ void split_real_pair(Eigen::MatrixXd& h, Eigen::MatrixXd& z, Eigen::Index k) {
     }
   };
   rotate(h, k + 2);
-  rotate(z, n);
+  if (z.size() > 0) rotate(z, n);
   h(k + 1, k) = 0.0;
 }
 
 }  // namespace
 
-bool real_schur(const Eigen::MatrixXd& a, Eigen::MatrixXd& t, Eigen::MatrixXd& z) {
+bool real_schur(const Eigen::MatrixXd& a, Eigen::MatrixXd& t, Eigen::MatrixXd& z, bool vectors) {
   const Eigen::Index n = a.rows();
   Eigen::HessenbergDecomposition<Eigen::MatrixXd> hess(a);
   t = hess.matrixH();
-  z = hess.matrixQ();
+  z = vectors ? Eigen::MatrixXd(hess.matrixQ()) : Eigen::MatrixXd();
   const double norm = std::max(t.cwiseAbs().maxCoeff(), std::numeric_limits<double>::min());
   Eigen::Index p = n - 1, iter = 0, total = 0;
   const Eigen::Index max_total = 40 * std::max<Eigen::Index>(n, 1);
