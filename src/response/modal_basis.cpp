@@ -351,10 +351,15 @@ ModalBasis decompose(const Eigen::MatrixXd& a, double span) {
   Eigen::MatrixXd ab = a;
   basis.scale = balance(ab);
   Eigen::MatrixXd t_real, z_real;
-  if (!real_schur(ab, t_real, z_real)) {
-    basis.ok = false;
-    basis.reason = "the eigenvalues of the state matrix could not be computed (Schur iteration did not converge)";
-    return basis;
+  if (!real_schur(ab, t_real, z_real)) {  // Eigen's implementation, with its own shift strategy
+    Eigen::RealSchur<Eigen::MatrixXd> fallback(ab, true);
+    if (fallback.info() != Eigen::Success) {
+      basis.ok = false;
+      basis.reason = "the eigenvalues of the state matrix could not be computed (Schur iteration did not converge)";
+      return basis;
+    }
+    t_real = fallback.matrixT();
+    z_real = fallback.matrixU();
   }
   basis.t = t_real.cast<Complex>();
   basis.q = z_real.cast<Complex>();
