@@ -1,0 +1,149 @@
+// Extremes of a response, or of the product of two, over an interval (terms.hpp).
+//
+// A local extreme lies where the derivative changes sign. The grid must put two samples on
+// either side of every such point: ≥ 24 samples per period of the fastest oscillation (a sum of
+// sinusoids and decays has at most a few derivative zeros per period), and, where a decay is
+// faster than the interval, 8 samples per time constant over its first 30 time constants (the
+// polynomial factors s^k·e^{−s/τ} have their humps at s = k·τ there). Each bracket is refined by
+// Newton's method on the derivative (the second derivative is exact), kept inside the bracket and
+// falling back to bisection, to a few units of rounding in t.
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <numbers>
+#include <set>
+
+#include "response/terms.hpp"
+
+namespace netfold::response {
+
+namespace {
+
+constexpr double kPointsPerPeriod = 24.0;
+constexpr double kMinPoints = 64.0;
+constexpr double kMaxPoints = 2'000'000.0;  // bounds very long windows (about a second of work)
+constexpr int kPointsPerTau = 8;
+constexpr int kTausClustered = 30;
+
+// f, or f·g, with its first two derivatives.
+struct Signal {
+  const Response& f;
+  const Response* g = nullptr;
+
+  double value(double t) const { return g ? f.value(t) * g->value(t) : f.value(t); }
+  double d1(double t) const {
+    return g ? f.derivative(t) * g->value(t) + f.value(t) * g->derivative(t) : f.derivative(t);
+  }
+  double d2(double t) const {
+    if (!g) return f.second_derivative(t);
+    return f.second_derivative(t) * g->value(t) + 2.0 * f.derivative(t) * g->derivative(t) +
+           f.value(t) * g->second_derivative(t);
+  }
+};
+
+// Decay rates (1/s) of a response's terms, one per quarter octave.
+void collect_decays(const Response& y, std::set<long>& buckets, std::vector<double>& rates) {
+  auto add = [&](double rate) {
+    if (!(rate > 0.0) || !std::isfinite(rate)) return;
+    const long bucket = std::lround(std::floor(4.0 * std::log2(rate)));
+    if (buckets.insert(bucket).second) rates.push_back(rate);
+  };
+  for (const auto& t : y.terms) {
+    add(-t.z.real());
+    if (t.has_phi) add(-(t.z + t.d).real());
+  }
+}
+
+std::vector<double> sample_times(const Signal& sig, double from, double to) {
+  const double span = to - from;
+  double w = sig.f.fastest_angular_frequency() + (sig.g ? sig.g->fastest_angular_frequency() : 0.0);
+  double wanted = std::ceil(span * w / (2.0 * std::numbers::pi) * kPointsPerPeriod);
+  const auto n = static_cast<std::size_t>(std::clamp(wanted, kMinPoints, kMaxPoints));
+  std::vector<double> ts;
+  ts.reserve(n + 1);
+  for (std::size_t i = 0; i <= n; ++i) ts.push_back(from + span * static_cast<double>(i) / static_cast<double>(n));
+  ts.back() = to;
+  std::set<long> buckets;
+  std::vector<double> rates;
+  collect_decays(sig.f, buckets, rates);
+  if (sig.g) collect_decays(*sig.g, buckets, rates);
+  const double start = std::max(from, sig.f.t0);
+  for (double rate : rates) {
+    const double tau = 1.0 / rate;
+    if (tau >= span) continue;  // the uniform grid already resolves it
+    for (int k = 1; k <= kPointsPerTau * kTausClustered; ++k) {
+      const double t = start + tau * k / kPointsPerTau;
+      if (t >= to) break;
+      if (t > from) ts.push_back(t);
+    }
+  }
+  std::sort(ts.begin(), ts.end());
+  ts.erase(std::unique(ts.begin(), ts.end()), ts.end());
+  return ts;
+}
+
+// A zero of the derivative in [a, b], where it changes sign.
+double refine(const Signal& sig, double a, double b, double da) {
+  const double tol = 4.0 * std::numeric_limits<double>::epsilon() * std::max(std::fabs(a), std::fabs(b)) +
+                     std::numeric_limits<double>::min();
+  double x = 0.5 * (a + b);
+  for (int iter = 0; iter < 200; ++iter) {
+    const double dx = sig.d1(x);
+    if (dx == 0.0) return x;
+    if ((dx > 0.0) == (da > 0.0)) {
+      a = x;
+      da = dx;
+    } else {
+      b = x;
+    }
+    if (b - a <= tol) return x;
+    const double curvature = sig.d2(x);
+    double next = x - dx / curvature;
+    if (!(next > a && next < b)) next = 0.5 * (a + b);
+    if (std::fabs(next - x) <= tol) return next;
+    x = next;
+  }
+  return x;
+}
+
+Extremes scan(const Signal& sig, double from, double to) {
+  Extremes ex;
+  ex.max = ex.min = sig.value(from);
+  ex.t_max = ex.t_min = from;
+  auto consider = [&](double t, double v) {
+    if (v > ex.max) {
+      ex.max = v;
+      ex.t_max = t;
+    }
+    if (v < ex.min) {
+      ex.min = v;
+      ex.t_min = t;
+    }
+  };
+  consider(to, sig.value(to));
+  if (!(to > from)) return ex;
+  const auto ts = sample_times(sig, from, to);
+  double t_prev = ts.front(), d_prev = sig.d1(t_prev);
+  for (std::size_t i = 1; i < ts.size(); ++i) {
+    const double t = ts[i], d = sig.d1(t);
+    consider(t, sig.value(t));
+    if ((d_prev > 0.0 && d <= 0.0) || (d_prev < 0.0 && d >= 0.0)) {
+      const double root = refine(sig, t_prev, t, d_prev);
+      consider(root, sig.value(root));
+    }
+    t_prev = t;
+    d_prev = d;
+  }
+  return ex;
+}
+
+}  // namespace
+
+Extremes find_extremes(const Response& y, double from, double to) { return scan(Signal{y}, from, to); }
+
+Extremes find_extremes_of_product(const Response& f, const Response& g, double from, double to) {
+  return scan(Signal{f, &g}, from, to);
+}
+
+}  // namespace netfold::response
