@@ -17,6 +17,7 @@ import cmath
 import csv
 import io
 import math
+import json
 import os
 import subprocess
 import sys
@@ -310,6 +311,27 @@ def require_event_rows(case, times):
             raise RuntimeError(f"no CSV row at the event t = {t!r} s (nearest row: {nearest!r} s)")
 
 
+def case_held_node_difference():
+    # `@a - @b` with both nodes held (issue 12 item 1): d by a grounded source, g by the gate
+    # capacitance. C·dv/dt = (vd - v)/R, so @d - @g = vd - v and @g - @d = v - vd. The source is
+    # a 12 V step at 0 s plus a 2 V, 20 MHz ripple that holds for all t: before t = 0 the
+    # capacitor is in the ripple's phasor steady state, v = Re(V̂/(1 + jωRC)·e^{jωt}) at t = 0-.
+    R, C, f = 10.0, 1e-9, 20e6
+    ripple = cos_wave(2.0, f)
+    vd = lambda t: (12.0 if t >= 0.0 else 0.0) + ripple(t)
+    x0 = (2.0 / complex(1.0, TWO_PI * f * R * C)).real
+    return Case("held_node_difference", """
+drive: voltage-source d -> gnd, step 12 V at 0 s + cosine 2 V 20 MHz
+r_g: resistor d -> g, 10 ohm
+c_gs: capacitor g -> gnd, 1 nF
+watch @d - @g, @g - @d
+window 0 s .. 100 ns
+resolution 0.25 ns
+""", x0, [Segment(0.0, -1 / (R * C), lambda t: vd(t) / (R * C),
+                  {"@d - @g": lambda t, v: vd(t) - v, "@g - @d": lambda t, v: v - vd(t)})],
+        1e-12, {"@d - @g": "V", "@g - @d": "V"})
+
+
 def case_list():
     return [
         case_rc_step(),
@@ -322,6 +344,7 @@ def case_list():
         case_held_at_zero_rl(),
         case_rl_steady_state(),
         case_prefixed_event_rows(),
+        case_held_node_difference(),
     ]
 
 
@@ -475,8 +498,43 @@ ground n
     return ("resistor_power_rating", passed, f"SciPy {reference:.10g} W; " + "; ".join(details))
 
 
+def check_norton_port_current(netfold, directory):
+    # `equiv --port` (issue 12 item 2): i_sc is the current in a short between the two nodes,
+    # the storage element's share included (held at its value at --at). A 48 V bus through
+    # 10 mΩ feeds a link node; a 2.2 mF capacitor from 30 V sits behind its 5 mΩ ESR. Kirchhoff
+    # at the link: v_l = (48·ESR + v_c·R_s)/(R_s + ESR), C·dv_c/dt = (v_l - v_c)/ESR; SciPy
+    # integrates v_c to t = 20 µs, and a short at the link then draws 48/R_s + v_c/ESR.
+    Rs, Resr, C, at = 0.010, 0.005, 2.2e-3, 20e-6
+    def dvdt(t, y):
+        vl = (48.0 * Resr + y[0] * Rs) / (Rs + Resr)
+        return [(vl - y[0]) / (Resr * C)]
+    sol = solve_ivp(dvdt, (0.0, at), [30.0], method="Radau", rtol=1e-12, atol=1e-12, t_eval=[at])
+    if not sol.success:
+        raise RuntimeError(f"solve_ivp failed: {sol.message}")
+    vc = sol.y[0, -1]
+    isc_ref, rth_ref = 48.0 / Rs + vc / Resr, Rs * Resr / (Rs + Resr)
+    path = os.path.join(directory, "norton_port.nf")
+    with open(path, "w", encoding="utf-8") as fh:
+        fh.write("bus: voltage-source s -> gnd, dc 48 V\nr_s: resistor s -> link, 10 mohm\n"
+                 "esr: resistor link -> c, 5 mohm\nc_link: capacitor c -> gnd, 2.2 mF, initial 30 V\n"
+                 "window 0 .. 1 ms\n")
+    out = subprocess.run([netfold, "equiv", path, "--port", "link,gnd", "--at", "20 us", "--json", "-"],
+                         capture_output=True, text=True)
+    if out.returncode != 0:
+        return ("norton_port_current", False, f"netfold exited {out.returncode}: {out.stderr.strip()}")
+    eq = json.loads(out.stdout)
+    e_isc = abs(eq["isc_dc"] - isc_ref) / isc_ref
+    e_rth = abs(eq["rth"] - rth_ref) / rth_ref
+    e_voc = abs(eq["vth_dc"] - isc_ref * rth_ref) / (isc_ref * rth_ref)
+    passed = max(e_isc, e_rth, e_voc) <= RTOL_PASS
+    return ("norton_port_current", passed,
+            f"i_sc {eq['isc_dc']:.10g} A (SciPy {isc_ref:.10g} A, rel {e_isc:.2g}), R_th rel {e_rth:.2g}, "
+            f"v_oc rel {e_voc:.2g}")
+
+
 def extra_checks():
-    return [check_sine_phase_sweep, check_harmonic_phase_sweep, check_resistor_power_rating]
+    return [check_sine_phase_sweep, check_harmonic_phase_sweep, check_resistor_power_rating,
+            check_norton_port_current]
 
 
 def run_netfold(netfold, case, directory):
