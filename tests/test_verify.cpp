@@ -621,6 +621,26 @@ TEST_CASE("issue 12 (done when): the numerical run is the same with every engine
   CHECK(run.initial_state == clean.initial_state);
 }
 
+TEST_CASE("issue 12 (done when): a wrong sweep phase injected in the engine fails verify", "[verify]") {
+  // A sine source swept to its written 30°: the cross-check reads the scenario in the user's
+  // terms on its own path, so an engine that applies the phase 90° off (the first edition's
+  // cosine reference) is caught; so is one that is off by a few degrees.
+  Circuit c = parse_netlist("V1: voltage-source a -> gnd, sine 10 V 50 Hz phase 10 deg + cosine 2 V 150 Hz\n"
+                            "K1: switch a -> x, closes at 2 ms\nR1: resistor x -> b, 100 ohm\n"
+                            "C1: capacitor b -> gnd, 10 uF\nwatch C1.v, R1.i\nwindow 0 s .. 30 ms\n",
+                            "phase.nf");
+  SolveOptions so;
+  so.scenario.source_phases.push_back({*c.find_element("V1"), 30.0 * std::numbers::pi / 180.0});
+  CHECK(check(c, so).passed);
+  for (double offset_deg : {90.0, 5.0}) {
+    seams::ScopedFaults fault({.sweep_phase_offset = offset_deg * std::numbers::pi / 180.0});
+    VerifyReport r = check(c, so);
+    INFO("phase off by " << offset_deg << "°: " << r.message);
+    CHECK_FALSE(r.passed);
+  }
+  CHECK(check(c, so).passed);
+}
+
 // ---------------------------------------------------------------------------------------------
 // issue 12 item 11: one verdict per file. A power that overflows was refused by `solve` (exit 2),
 // failed `verify` (exit 1, "not finite") and passed `check`; the engine step every command runs

@@ -28,4 +28,9 @@ void apply_observable_faults(const Observable& observable, const NodalSystem& sy
   }
 }
 
+Scenario faulty_scenario(Scenario scenario) {
+  for (SourcePhase& p : scenario.source_phases) p.phase += active_faults.sweep_phase_offset;
+  return scenario;
+}
+
 }  // namespace netfold::seams

@@ -9,6 +9,7 @@
 
 #include "netfold/mna.hpp"
 #include "netfold/netlist.hpp"
+#include "netfold/scenario.hpp"
 
 namespace netfold::seams {
 
@@ -18,6 +19,7 @@ struct EngineFaults {
   double tau_scale = 1.0;                // every segment's time constant × this (solve.cpp)
   bool difference_drops_node_b = false;  // `@a - @b` evaluated as `@a` (observable form)
   bool current_sign_flip = false;        // `X.i` evaluated from the second node to the first
+  double sweep_phase_offset = 0.0;       // rad added to every swept source phase (solve.cpp)
 };
 
 // The faults active on the calling thread (all off by default).
@@ -41,5 +43,9 @@ class ScopedFaults {
 // `system`. Unchanged when no fault is active.
 void apply_observable_faults(const Observable& observable, const NodalSystem& system, bool current_factor,
                              LinearForm& form);
+
+// The scenario as the engine applies it: with the sweep-phase fault active, every swept
+// source phase moved by its offset (the first edition read a sine's phase 90° off).
+Scenario faulty_scenario(Scenario scenario);
 
 }  // namespace netfold::seams
