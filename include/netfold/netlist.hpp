@@ -136,6 +136,9 @@ enum class ObservableKind : std::uint8_t {
   node_difference,  ///< `@a - @b`
 };
 
+/// A readable name of an observable kind, "" for a value that is no kind.
+std::string_view observable_kind_name(ObservableKind kind);
+
 /// A quantity that can be watched, claimed or plotted.
 struct Observable {
   ObservableKind kind = ObservableKind::node_voltage;

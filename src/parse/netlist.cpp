@@ -21,6 +21,19 @@ std::string_view kind_keyword(ElementKind kind) {
   return "element";
 }
 
+std::string_view observable_kind_name(ObservableKind kind) {
+  // No default: a new kind is a compile error under -Werror (-Wswitch) until it is named here,
+  // and tests/test_coverage.cpp then requires it on every command path.
+  switch (kind) {
+    case ObservableKind::element_voltage: return "element voltage (X.v)";
+    case ObservableKind::element_current: return "element current (X.i)";
+    case ObservableKind::element_power: return "element power (X.p)";
+    case ObservableKind::node_voltage: return "node voltage (@n)";
+    case ObservableKind::node_difference: return "node difference (@a - @b)";
+  }
+  return "";
+}
+
 bool is_storage(ElementKind kind) { return kind == ElementKind::capacitor || kind == ElementKind::inductor; }
 
 bool is_independent_source(ElementKind kind) {
