@@ -16,28 +16,6 @@ namespace {
 
 constexpr double kTwoPi = 2.0 * std::numbers::pi;
 
-// The observable as the numerical path reads it from the format's definitions: node voltages
-// against the reference, their difference, an element's voltage, current, or both factors of
-// its power. Written here, not taken from the engine, so that a misreading there shows as a
-// failed cross-check.
-LinearForm observable_form(const NodalSystem& sys, const Observable& obs, bool current) {
-  switch (obs.kind) {
-    case ObservableKind::node_voltage: return sys.node_voltage(obs.node_a);
-    case ObservableKind::node_difference: {
-      LinearForm a = sys.node_voltage(obs.node_a), b = sys.node_voltage(obs.node_b);
-      for (auto [x, c] : b.unknowns) a.unknowns.push_back({x, -c});
-      for (auto [u, c] : b.inputs) a.inputs.push_back({u, -c});
-      a.defined = a.defined && b.defined && sys.component_of(obs.node_a) == sys.component_of(obs.node_b);
-      return a;
-    }
-    case ObservableKind::element_voltage: return sys.element_voltage(obs.element);
-    case ObservableKind::element_current: return sys.element_current(obs.element);
-    case ObservableKind::element_power:
-      return current ? sys.element_current(obs.element) : sys.element_voltage(obs.element);
-  }
-  return {};
-}
-
 InputGains input_gains(const LinearForm& form, const Eigen::MatrixXd& unit_unknowns) {
   const Eigen::Index n = unit_unknowns.cols();
   InputGains g(static_cast<std::size_t>(n));
@@ -163,9 +141,12 @@ void Configurations::add_forms(Configuration& c, const std::string& where) const
   Eigen::MatrixXd unit(c.system.matrix().rows(), n_inputs);
   for (Eigen::Index j = 0; j < n_inputs; ++j) unit.col(j) = c.unknowns(Eigen::VectorXd::Unit(n_inputs, j));
   for (const auto& obs : observables_) {
-    LinearForm f = observable_form(c.system, obs, false);
-    std::optional<LinearForm> g;
-    if (obs.kind == ObservableKind::element_power) g = observable_form(c.system, obs, true);
+    // The format's one definition of the observable (network stage), read directly: the
+    // engine's reading of it goes through its own evaluation (and its test seams), so a
+    // misreading there still shows here as a failed cross-check.
+    ObservableForm form = observable_form(c.system, obs);
+    LinearForm f = std::move(form.value);
+    std::optional<LinearForm> g = std::move(form.current);
     if (!f.defined || (g && !g->defined))
       throw InputError(circuit_.diagnostic(obs.loc, fmt::format("'{}' is not defined in {}: the node has no "
                                                                 "path to the reference there",
