@@ -268,6 +268,12 @@ class NameIndex {
   }
 };
 
+class Circuit;
+
+/// Element `id`'s voltage, current or power as an observable (`X.v`, `X.i`, `X.p`), positioned
+/// at the element's line.
+Observable element_observable(const Circuit& circuit, ElementId id, ObservableKind kind);
+
 /// A checked, immutable circuit. Nodes and elements are addressed by index.
 class Circuit {
  public:

@@ -34,6 +34,17 @@ std::string_view observable_kind_name(ObservableKind kind) {
   return "";
 }
 
+Observable element_observable(const Circuit& c, ElementId id, ObservableKind kind) {
+  Observable o;
+  o.kind = kind;
+  o.element = id;
+  o.text = c.element(id).name + (kind == ObservableKind::element_voltage   ? ".v"
+                                 : kind == ObservableKind::element_current ? ".i"
+                                                                           : ".p");
+  o.loc = c.element(id).loc;
+  return o;
+}
+
 bool is_storage(ElementKind kind) { return kind == ElementKind::capacitor || kind == ElementKind::inductor; }
 
 bool is_independent_source(ElementKind kind) {

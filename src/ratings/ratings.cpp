@@ -8,18 +8,6 @@
 
 namespace netfold {
 
-namespace {
-
-Observable element_observable(const Circuit& c, ElementId id, ObservableKind kind) {
-  Observable o;
-  o.kind = kind;
-  o.element = id;
-  o.text = c.element(id).name + (kind == ObservableKind::element_voltage ? ".v" : ".i");
-  o.loc = c.element(id).loc;
-  return o;
-}
-
-}  // namespace
 
 std::string_view rating_quantity(RatingKind kind) {
   switch (kind) {

@@ -44,15 +44,6 @@ bool bounded(const std::vector<Piece>& pieces) {
   return std::all_of(pieces.begin(), pieces.end(), [](const Piece& p) { return std::isfinite(bound(p)); });
 }
 
-Observable element_observable(const Circuit& c, ElementId id, ObservableKind kind) {
-  Observable o;
-  o.kind = kind;
-  o.element = id;
-  const char* suffix = kind == ObservableKind::element_voltage ? ".v" : kind == ObservableKind::element_current ? ".i" : ".p";
-  o.text = c.element(id).name + suffix;
-  o.loc = c.element(id).loc;
-  return o;
-}
 
 // True when the element's voltage and current have a value in every segment (not on a
 // floating part of the circuit): only then can any command print a figure of it.

@@ -483,7 +483,6 @@ ObservableForm Solution::engine_form(const Observable& obs, const NodalSystem& s
 
 namespace {
 std::vector<std::string> ideal_break_cautions(const Solution& s);
-Observable element_observable(const Circuit& c, ElementId id, ObservableKind kind);
 }  // namespace
 
 Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<NetworkCache> cache) {
@@ -834,14 +833,6 @@ Figures compute_figures(const Solution& solution, const Observable& obs) {
 
 namespace {
 
-Observable element_observable(const Circuit& c, ElementId id, ObservableKind kind) {
-  Observable o;
-  o.kind = kind;
-  o.element = id;
-  o.text = c.element(id).name + (kind == ObservableKind::element_voltage ? ".v" : ".i");
-  o.loc = c.element(id).loc;
-  return o;
-}
 
 // An integral of a product overflows long before its factors do (a 1e300 V source): refuse it
 // in circuit terms rather than print a number that is not one.
