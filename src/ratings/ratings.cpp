@@ -8,7 +8,6 @@
 
 namespace netfold {
 
-
 std::string_view rating_quantity(RatingKind kind) {
   switch (kind) {
     case RatingKind::peak_voltage: return "peak voltage";
