@@ -79,7 +79,8 @@ TEST_CASE("issue 12 item 6: a DC bleeder's rated power does not change with the 
   const double v_r = 100.0 * 1e4 / (1e4 + 1.0), p = v_r * v_r / 1e4;
   for (const char* window : {"window 0 .. 20 ms\n", "window 0 .. 2 s\n", ""}) {
     auto s = solve_text(circuit + window);
-    const RatingCheck& r = rating_of(check_ratings(*s), *s.circuit, "R_bleed");
+    const std::vector<RatingCheck> ratings = check_ratings(*s);
+    const RatingCheck& r = rating_of(ratings, *s.circuit, "R_bleed");
     INFO("window: " << window);
     CHECK_REL(r.actual, p, 1e-12);
     CHECK(r.exceeded);
