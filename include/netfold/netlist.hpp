@@ -39,6 +39,7 @@ enum class ElementKind : std::uint8_t {
   vccs,     ///< voltage-controlled current source, gain in S
   ccvs,     ///< current-controlled voltage source, gain in ohm
   cccs,     ///< current-controlled current source, gain in A/A
+  diode,    ///< (v2) a two-state element: conducts forward, blocks, optionally breaks down
 };
 
 /// The keyword of a kind as written in the format: "resistor", "voltage-source", ...
@@ -79,10 +80,27 @@ struct Waveform {
   bool has_sinusoid() const { return !sinusoids.empty(); }
 };
 
-/// One event of a switch: it closes or opens at `time`.
+/// What sets off a switch event (v2: events that act on the circuit's own state).
+enum class EventTrigger : std::uint8_t {
+  time,          ///< `closes at T` / `opens at T`: at T exactly
+  current_zero,  ///< `opens at current zero after T`: the first current zero at or after T
+  voltage_zero,  ///< `closes at voltage zero after T`: the first zero of the voltage across it at or after T
+};
+
+/// One event of a switch: it closes or opens at `time` (or, with a state trigger, at the first
+/// instant ≥ `time` at which its current or voltage passes through zero).
 struct SwitchEvent {
   double time = 0.0;   ///< s, ≥ 0
   bool closes = true;  ///< true for `closes at`, false for `opens at`
+  SourceLoc loc;
+  EventTrigger trigger = EventTrigger::time;
+};
+
+/// A component tolerance (v2): the value ranges over value·(1 + lower) .. value·(1 + upper);
+/// on a source, the factor applied to its whole waveform ranges over 1 + lower .. 1 + upper.
+struct Tolerance {
+  double lower = 0.0;  ///< fraction, ≤ 0 (−5 % is −0.05)
+  double upper = 0.0;  ///< fraction, ≥ 0
   SourceLoc loc;
 };
 
@@ -92,7 +110,12 @@ enum class RatingKind : std::uint8_t {
   peak_current,  ///< inductor, switch, voltage-source `rated A`: peak |i|
   mean_power,    ///< resistor `rated P W`: mean power over a fundamental period of the steady state
   energy,        ///< resistor `pulse-rated E J`: energy over the window
-  i2t,           ///< switch `rated-i2t X A2s`: ∫i²dt over the window
+  i2t,           ///< `rated-i2t X A2s` (any element, v2): ∫i²dt over the window
+  dvdt,          ///< (v2) capacitor `rated-dvdt`: largest |dv/dt|, V/s
+  didt,          ///< (v2) inductor or switch `rated-didt`: largest |di/dt|, A/s
+  rms_current,   ///< (v2) capacitor `rated-rms`: largest rms current over one fundamental period
+  peak_reverse_voltage,  ///< (v2) diode `rated X V`: peak reverse voltage
+  peak_forward_current,  ///< (v2) diode `rated X A`: peak forward current
 };
 
 /// A rating attribute of an element.
@@ -117,6 +140,10 @@ struct Element {
   std::vector<SwitchEvent> events;          ///< switches: in time order, alternating
   double r_on = 0.0;                        ///< switches: closed resistance, 0 = ideal
   double r_off = kInfinity;                 ///< switches: open resistance, ∞ = open circuit
+                                            ///< (diodes: `on` and `off` resistances likewise)
+  double forward = 0.0;                     ///< diodes: forward drop while conducting, V
+  std::optional<double> breakdown;          ///< diodes: reverse conduction at −breakdown, V
+  std::optional<Tolerance> tolerance;       ///< (v2) resistors, capacitors, inductors, sources
   NodeId sense_pos = kNone;                 ///< vcvs/vccs: controlling voltage is v(sense_pos) − v(sense_neg)
   NodeId sense_neg = kNone;
   ElementId sense_element = kNone;          ///< ccvs/cccs: controlling current is this element's current
@@ -159,6 +186,12 @@ enum class ClaimQuantity : std::uint8_t {
   amplitude, phase,           ///< of the steady-state fundamental
   energy, i2t,                ///< of element `element` over the window
   worst_peak,                 ///< over every declared sweep and the window
+  frequency, damping,         ///< (v2) of segment `segment`'s slowest-decaying oscillatory mode
+  share_peak,                 ///< (v2) % of the sweeps' range where peak |observable| > level
+  time_below,                 ///< (v2) time from `after` on which |observable| stays below level
+  dvdt, didt,                 ///< (v2) largest |dv/dt| of capacitor / |di/dt| of `element`
+  rms,                        ///< (v2) largest rms current of `element` over a fundamental period
+  power,                      ///< (v2) the sustained power `rated P` is judged by, of `element`
 };
 
 /// Comparison of a claim.
@@ -171,6 +204,8 @@ struct Claim {
   Observable observable;         ///< peak/max/min/final/at/amplitude/phase/worst_peak
   ElementId element = kNone;     ///< energy/i2t
   double time = 0.0;             ///< at_time: s
+  double level = 0.0;            ///< share_peak, time_below: the level in SI units
+  std::optional<double> after;   ///< time_below: from when (default: the last event), s
   CompareOp op = CompareOp::eq;
   double value = 0.0;            ///< in SI units of the quantity (phase in rad)
   double tolerance = 0.0;        ///< absolute (SI) or percent, `eq` only
@@ -196,6 +231,9 @@ struct Sweep {
   std::optional<double> step; ///< grid spacing of the search and of `worst --csv`
   std::string text;           ///< `supply.phase`
   SourceLoc loc;
+  /// (v2) Index of the `sweep` line among the circuit's sweep lines: targets written on one
+  /// line share it and vary jointly; a first-edition file has one target per line.
+  std::uint32_t line = 0;
 };
 
 /// The analysis span.
@@ -352,7 +390,13 @@ class CircuitBuilder {
   /// Names the reference node (creates it when new).
   void set_ground(std::string_view name, SourceLoc loc);
   void add_watch(Observable observable) { circuit_.watches_.push_back(std::move(observable)); }
-  void add_sweep(Sweep sweep) { circuit_.sweeps_.push_back(std::move(sweep)); }
+  /// Adds a sweep target as a new sweep line, or (joins_previous, v2) as one more target of the
+  /// previous line, varied jointly with it. Sets Sweep::line.
+  void add_sweep(Sweep sweep, bool joins_previous = false) {
+    const auto& all = circuit_.sweeps_;
+    sweep.line = all.empty() ? 0 : (joins_previous ? all.back().line : all.back().line + 1);
+    circuit_.sweeps_.push_back(std::move(sweep));
+  }
   void add_claim(Claim claim) { circuit_.claims_.push_back(std::move(claim)); }
   void set_window(Window window) { circuit_.window_ = window; }
   void set_resolution(double dt, SourceLoc loc = {}) {

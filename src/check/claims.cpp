@@ -76,7 +76,8 @@ Circuit with_watches(const Circuit& c, const std::vector<Observable>& observed, 
   b.set_title(c.title());
   for (const auto& o : observed) b.add_watch(o);
   for (const auto& o : extra) b.add_watch(o);
-  for (const auto& s : c.sweeps()) b.add_sweep(s);
+  for (std::size_t k = 0; k < c.sweeps().size(); ++k)
+    b.add_sweep(c.sweeps()[k], k > 0 && c.sweeps()[k].line == c.sweeps()[k - 1].line);
   if (c.window()) b.set_window(*c.window());
   if (c.resolution()) b.set_resolution(*c.resolution());
   if (c.golden_tolerance()) b.set_golden_tolerance(*c.golden_tolerance());
@@ -111,8 +112,18 @@ class ClaimEvaluator {
         }
         case ClaimQuantity::i2t: return {element_i2t(s_, claim.element), {}, {}};
         case ClaimQuantity::worst_peak: return worst_peak(claim);
+        case ClaimQuantity::power: return {element_mean_power(s_, claim.element), {}, {}};
+        // Read by the parser only once the engine computes them (several storage elements,
+        // distributions, the v2 stress figures).
+        case ClaimQuantity::frequency:
+        case ClaimQuantity::damping:
+        case ClaimQuantity::share_peak:
+        case ClaimQuantity::time_below:
+        case ClaimQuantity::dvdt:
+        case ClaimQuantity::didt:
+        case ClaimQuantity::rms: break;
       }
-      return undefined("unknown claim quantity");
+      return undefined("is not computed by this build");
     } catch (const Error& e) {
       return undefined(fmt::format("cannot be evaluated: {}", error_text(e)));
     }
@@ -326,6 +337,21 @@ std::string claim_quantity_text(const Claim& claim, const Circuit& circuit) {
       return (claim.quantity == ClaimQuantity::energy ? "energy " : "i2t ") + name;
     }
     case ClaimQuantity::worst_peak: return "worst peak " + obs;
+    case ClaimQuantity::frequency: return segmented("frequency");
+    case ClaimQuantity::damping: return segmented("damping");
+    case ClaimQuantity::share_peak: return fmt::format("share peak {} > {}", obs, show(claim, claim.level, kClaimedDigits));
+    case ClaimQuantity::time_below: return fmt::format("time-below {} {}", obs, show(claim, claim.level, kClaimedDigits));
+    case ClaimQuantity::dvdt:
+    case ClaimQuantity::didt:
+    case ClaimQuantity::rms:
+    case ClaimQuantity::power: {
+      std::string name = claim.element < circuit.elements().size() ? circuit.element(claim.element).name : "?";
+      const char* word = claim.quantity == ClaimQuantity::dvdt   ? "dvdt "
+                         : claim.quantity == ClaimQuantity::didt ? "didt "
+                         : claim.quantity == ClaimQuantity::rms  ? "rms "
+                                                                 : "power ";
+      return word + name;
+    }
   }
   return "?";
 }

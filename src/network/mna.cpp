@@ -58,6 +58,7 @@ Edge edge_of(const Element& e, bool is_port, PortMode mode, bool closed) {
     case ElementKind::switch_:
       if (closed) return e.r_on > 0.0 ? Edge::resistive : Edge::stiff;
       return std::isfinite(e.r_off) ? Edge::resistive : Edge::none;
+    case ElementKind::diode: return Edge::none;  // never built: solve() refuses diodes first
   }
   return Edge::none;
 }

@@ -17,6 +17,7 @@ std::string_view kind_keyword(ElementKind kind) {
     case ElementKind::vccs: return "vccs";
     case ElementKind::ccvs: return "ccvs";
     case ElementKind::cccs: return "cccs";
+    case ElementKind::diode: return "diode";
   }
   return "element";
 }

@@ -1,6 +1,7 @@
 #include "netfold/ratings.hpp"
 
 #include <cmath>
+#include <stdexcept>
 
 #include <fmt/format.h>
 
@@ -15,6 +16,11 @@ std::string_view rating_quantity(RatingKind kind) {
     case RatingKind::mean_power: return "mean power";
     case RatingKind::energy: return "energy";
     case RatingKind::i2t: return "I²t";
+    case RatingKind::dvdt: return "dv/dt";
+    case RatingKind::didt: return "di/dt";
+    case RatingKind::rms_current: return "rms current";
+    case RatingKind::peak_reverse_voltage: return "peak reverse voltage";
+    case RatingKind::peak_forward_current: return "peak forward current";
   }
   return "";
 }
@@ -26,6 +32,11 @@ std::string_view rating_unit(RatingKind kind) {
     case RatingKind::mean_power: return "W";
     case RatingKind::energy: return "J";
     case RatingKind::i2t: return "A²s";
+    case RatingKind::dvdt: return "V/s";
+    case RatingKind::didt: return "A/s";
+    case RatingKind::rms_current:
+    case RatingKind::peak_forward_current: return "A";
+    case RatingKind::peak_reverse_voltage: return "V";
   }
   return "";
 }
@@ -46,8 +57,14 @@ RatingStress rating_stress(const Solution& solution, ElementId id, RatingKind ki
     case RatingKind::mean_power: s.value = element_mean_power(solution, id, &s.segment); return s;
     case RatingKind::energy: s.value = element_energy(solution, id); return s;
     case RatingKind::i2t: s.value = element_i2t(solution, id); return s;
+    // The parser does not produce these yet (the ratings stage computes them once it does).
+    case RatingKind::dvdt:
+    case RatingKind::didt:
+    case RatingKind::rms_current:
+    case RatingKind::peak_reverse_voltage:
+    case RatingKind::peak_forward_current: break;
   }
-  return s;
+  throw std::logic_error(fmt::format("no stress computed for the {} rating", rating_quantity(kind)));
 }
 
 std::string stress_location(const Solution& solution, RatingKind kind, const RatingStress& stress) {
@@ -61,6 +78,11 @@ std::string stress_location(const Solution& solution, RatingKind kind, const Rat
     }
     case RatingKind::energy:
     case RatingKind::i2t: return "over the window";
+    case RatingKind::dvdt:
+    case RatingKind::didt:
+    case RatingKind::rms_current:
+    case RatingKind::peak_reverse_voltage:
+    case RatingKind::peak_forward_current: return stress.time ? fmt::format("at {}", format_si(*stress.time, "s")) : "";
   }
   return "";
 }
