@@ -17,10 +17,15 @@
 /// computed from these expressions, never from time stepping.
 
 #include <complex>
+#include <memory>
 #include <optional>
 #include <vector>
 
 namespace netfold {
+
+namespace response {
+struct Response;
+}  // namespace response
 
 /// A sinusoid Re(value·e^{j·2π·frequency·t}), t absolute: magnitude = peak, arg = phase
 /// against a cosine.
@@ -67,17 +72,29 @@ Wave affine_wave(const Wave& x, double gain, const Drive& direct);
 /// A constant signal over [t0, t1] (a quantity held at a value, or at zero).
 Wave constant_wave(double t0, double t1, double value);
 
-/// One segment of an observable: a Wave, or the product of two (powers).
+/// One segment of an observable: a Wave, or the product of two (powers). In a segment with
+/// several storage elements the factors are sums of modal terms instead (`terms_f`, `terms_g`;
+/// response/terms.hpp), and f and g carry only the segment's span.
 struct Piece {
+  Piece() = default;
+  Piece(Wave wave, std::optional<Wave> factor = std::nullopt) : f(std::move(wave)), g(std::move(factor)) {}
   Wave f;
   std::optional<Wave> g;  ///< when set, the value is f·g
-  double value(double t) const { return g ? f.value(t) * g->value(t) : f.value(t); }
-  double derivative(double t) const {
-    return g ? f.derivative(t) * g->value(t) + f.value(t) * g->derivative(t) : f.derivative(t);
-  }
+  std::shared_ptr<const response::Response> terms_f;  ///< several states: the first factor
+  std::shared_ptr<const response::Response> terms_g;  ///< several states: the current of a power
+  bool has_terms() const { return terms_f != nullptr; }
+  bool is_product() const { return g.has_value() || terms_g != nullptr; }
+  double value(double t) const;
+  double derivative(double t) const;
   double t0() const { return f.t0; }
   double t1() const { return f.t1; }
 };
+
+/// The steady state that a piece's first factor tends to (Wave::steady_state, or the terms').
+std::optional<Drive> steady_state_of(const Piece& piece);
+
+/// ∫ a(t)·b(t) dt over [from, to] of the first factors of two pieces of the same segment.
+double integral_of_product(const Piece& a, const Piece& b, double from, double to);
 
 /// Largest and smallest value of a piece over [from, to] ⊆ [t0, t1], with their times.
 struct Extremes {

@@ -9,12 +9,13 @@
 ///    branches to the reference fix are excluded) then branch currents (A) of the elements
 ///    that need one (floating voltage sources, vcvs, ccvs, ideal closed switches, the
 ///    capacitor port, and elements whose current another element senses);
-/// u: inputs — u[0] is the storage element's state (capacitor voltage in V or inductor
-///    current in A), u[1 + k] the present value of the k-th independent source;
+/// u: inputs — u[0 .. n−1] are the n storage elements' states in file order (capacitor voltage
+///    in V, inductor current in A), u[n + k] the present value of the k-th independent source
+///    (a circuit with no storage element keeps u[0] unused, so its sources start at u[1]);
 /// G: the nodal matrix (S and dimensionless entries); B: how each input enters.
 ///
-/// The storage element is a port: a capacitor becomes a voltage source holding u[0], an
-/// inductor a current source driving u[0]. Within one configuration the network is
+/// Every storage element is a port: a capacitor becomes a voltage source holding its state, an
+/// inductor a current source driving its state. Within one configuration the network is
 /// resistive, so every voltage and current is an exact linear function of u.
 
 #include <cstdint>
@@ -38,10 +39,11 @@ struct SwitchPositions {
 /// The switch positions before t = 0 (each switch opposite to its first event).
 SwitchPositions positions_before_zero(const Circuit& circuit);
 
-/// The independent sources, in element order; input u[1 + k] is sources[k]'s value.
+/// The independent sources, in element order; input u[n + k] is sources[k]'s value (n the
+/// number of states, at least 1).
 std::vector<ElementId> independent_sources(const Circuit& circuit);
 
-/// How the storage element enters the equations.
+/// How a storage element enters the equations.
 enum class PortMode : std::uint8_t {
   port,  ///< as a source holding the state (the normal case)
   /// An inductor whose loop is open and whose current is therefore held at 0: its voltage
@@ -52,10 +54,15 @@ enum class PortMode : std::uint8_t {
 
 /// Options of build_nodal_system.
 struct BuildOptions {
+  /// The mode of every storage element not given in `port_modes`.
   PortMode mode = PortMode::port;
   /// An extra ideal voltage source between two nodes (first = +), driven by an extra last
   /// input; used to find the Thevenin equivalent at any pair of nodes.
   std::optional<std::pair<NodeId, NodeId>> test_port;
+  /// Per storage element (file order), where they differ from `mode`.
+  std::vector<PortMode> port_modes;
+  /// The mode of the k-th storage element.
+  PortMode mode_of(std::size_t k) const;
 };
 
 /// A linear function of the unknowns and the inputs: y = Σ c_i·x_i + Σ d_j·u_j.
@@ -72,9 +79,9 @@ struct TopologyProblem {
   enum class Kind : std::uint8_t {
     voltage_loop,      ///< a loop of ideal voltage sources / vcvs / closed ideal switches
     test_port_loop,    ///< the test port is in such a loop: the port is shorted (R_th = 0)
-    capacitor_loop,    ///< the capacitor port is in such a loop: R_th = 0 (impulsive)
+    capacitor_loop,    ///< a capacitor port is in such a loop: R_th = 0 (impulsive or dependent)
     current_cut_set,   ///< current sources are the only connection of a floating sub-network
-    inductor_open,     ///< the inductor is the only connection: its current is forced to 0
+    inductor_open,     ///< inductors are the only connection: their currents are forced (to 0 for one)
   };
   Kind kind = Kind::voltage_loop;
   std::vector<ElementId> elements;  ///< the loop, or the cut-set
@@ -86,7 +93,7 @@ class NodalSystem {
  public:
   /// Number of unknowns (rows of G).
   std::uint32_t unknown_count() const { return unknown_count_; }
-  /// Number of inputs (columns of B): 1 + number of independent sources.
+  /// Number of inputs (columns of B): max(1, states) + number of independent sources.
   std::uint32_t input_count() const { return input_count_; }
   /// The nodal matrix G, column-major compressed.
   const Eigen::SparseMatrix<double>& matrix() const { return g_; }
@@ -109,8 +116,19 @@ class NodalSystem {
   LinearForm element_voltage(ElementId id) const;
   /// Current through element `id` from its first node to its second.
   LinearForm element_current(ElementId id) const;
-  /// The storage element's port quantity: its current (capacitor) or voltage (inductor).
-  LinearForm port_quantity() const;
+  /// Number of states n (storage elements, every one a port).
+  std::size_t state_count() const { return states_.size(); }
+  /// The storage elements in state order (file order).
+  const std::vector<ElementId>& state_elements() const { return states_; }
+  /// Index of element `id`'s state in u, or kNone when it is no storage element.
+  std::uint32_t state_input(ElementId id) const { return state_input_[id]; }
+  /// The k-th storage element's mode.
+  PortMode port_mode(std::size_t k) const { return port_modes_.at(k); }
+  /// Index in u of the first source (n, at least 1).
+  std::uint32_t first_source_input() const { return states_.empty() ? 1u : static_cast<std::uint32_t>(states_.size()); }
+  /// The k-th storage element's port quantity: its current (capacitor) or voltage (inductor),
+  /// C·dv/dt or L·di/dt.
+  LinearForm port_quantity(std::size_t k = 0) const;
   /// Current through the test port from its first node to its second (see BuildOptions).
   LinearForm test_port_current() const;
   /// Index of the test port's input in u (kNone without a test port).
@@ -132,8 +150,9 @@ class NodalSystem {
  private:
   friend NodalSystem build_nodal_system(const Circuit&, const SwitchPositions&, const BuildOptions&);
   const Circuit* circuit_ = nullptr;
-  ElementId storage_ = kNone;
-  PortMode port_mode_ = PortMode::port;
+  std::vector<ElementId> states_;             ///< storage elements in state order
+  std::vector<std::uint32_t> state_input_;    ///< per element: index into u, or kNone
+  std::vector<PortMode> port_modes_;          ///< per state
   SwitchPositions positions_;
   std::uint32_t input_count_ = 1;
   std::uint32_t test_input_ = kNone;
@@ -187,7 +206,8 @@ struct ObservableForm {
 /// through it.
 ObservableForm observable_form(const NodalSystem& system, const Observable& observable);
 
-/// Values of every input at time t: u[0] = state, u[1 + k] = source k's waveform at t.
+/// Values of every input at time t for one storage element: u[0] = state, u[1 + k] = source
+/// k's waveform at t.
 Eigen::VectorXd input_values(const Circuit& circuit, const std::vector<ElementId>& sources,
                              double t, double state);
 

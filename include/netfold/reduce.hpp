@@ -88,23 +88,30 @@ Equivalent storage_equivalent(const Circuit& circuit, const ReducedNetwork& netw
 /// configuration once. Not thread-safe; one per thread.
 class NetworkCache {
  public:
-  explicit NetworkCache(const Circuit& circuit) : circuit_(&circuit) {}
+  explicit NetworkCache(const Circuit& circuit)
+      : circuit_(&circuit), state_count_(circuit.storage_elements().size()) {}
+  /// The configuration with every storage element in `mode`.
   const ReducedNetwork& get(const SwitchPositions& positions, PortMode mode = PortMode::port);
+  /// The configuration with a mode per storage element (file order).
+  const ReducedNetwork& get(const SwitchPositions& positions, const std::vector<PortMode>& modes);
   const Circuit& circuit() const { return *circuit_; }
 
  private:
   const Circuit* circuit_;
+  std::size_t state_count_ = 0;
   // Keyed by the switch positions and the port mode. A hash map: a sequence of many events
   // has as many configurations, and a linear search made building a solution quadratic in
   // them (each segment keeps a pointer to its network afterwards; see Segment::network).
   struct Key {
     std::vector<bool> closed;
-    PortMode mode;
-    bool operator==(const Key& other) const { return mode == other.mode && closed == other.closed; }
+    std::vector<PortMode> modes;
+    bool operator==(const Key& other) const { return modes == other.modes && closed == other.closed; }
   };
   struct KeyHash {
     std::size_t operator()(const Key& k) const {
-      return std::hash<std::vector<bool>>{}(k.closed) * 31 + static_cast<std::size_t>(k.mode);
+      std::size_t h = std::hash<std::vector<bool>>{}(k.closed);
+      for (PortMode m : k.modes) h = h * 31 + static_cast<std::size_t>(m);
+      return h;
     }
   };
   std::unordered_map<Key, std::unique_ptr<ReducedNetwork>, KeyHash> networks_;

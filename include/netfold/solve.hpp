@@ -11,6 +11,7 @@
 ///   // s.segments()[0].tau == 0.1200 / 18.0  (6.667 ms)
 /// \endcode
 
+#include <complex>
 #include <memory>
 #include <optional>
 #include <string>
@@ -23,6 +24,10 @@
 #include "netfold/schedule.hpp"
 
 namespace netfold {
+
+namespace response {
+class ModalResponse;
+}  // namespace response
 
 /// How to solve: the scenario (what a sweep or what-if run changes, in the user's terms) and
 /// the window.
@@ -40,6 +45,19 @@ enum class InitialStateSource : std::uint8_t {
   steady_state,  ///< the steady state of the network before t = 0
   undetermined,  ///< no steady state (isolated, unstable, ramping): started from 0
   none,          ///< no storage element
+};
+
+/// A natural mode of a segment with several storage elements (a complex pair listed once).
+struct NaturalMode {
+  bool oscillatory = false;         ///< a complex pair
+  std::complex<double> eigenvalue;  ///< λ, 1/s (Im λ > 0 for a pair)
+  int multiplicity = 1;             ///< how many times λ repeats
+  /// s: a real mode's time constant −1/λ; a pair's decay time constant 1/α; +∞ where Re λ = 0;
+  /// negative for a growing mode.
+  double tau = kInfinity;
+  double frequency = 0.0;           ///< pairs: damped natural frequency f_d, Hz
+  double natural_frequency = 0.0;   ///< pairs: undamped natural frequency f_n, Hz
+  double damping = 0.0;             ///< pairs: damping ratio ζ
 };
 
 /// One interval between switching events.
@@ -64,6 +82,12 @@ struct Segment {
   /// The segment's reduced network, owned by the solution's NetworkCache (found once, so that
   /// evaluating observables does not look it up again per segment).
   const ReducedNetwork* network = nullptr;
+  /// Several storage elements: every state at `from` (state order), the natural modes (slowest
+  /// first) and the exact response of the states. `tau` is then the slowest decay time
+  /// constant and the equivalent is undefined.
+  std::vector<double> states_start;
+  std::vector<NaturalMode> modes;
+  std::shared_ptr<const response::ModalResponse> modal;
   /// True when τ is negative (a controlled source makes the response grow).
   bool unstable() const { return rate > 0.0; }
 };
@@ -73,8 +97,18 @@ struct Segment {
 class Solution {
  public:
   const Circuit& circuit() const { return *circuit_; }
-  /// The storage element, or kNone for a purely resistive circuit.
+  /// The storage element of a circuit with exactly one, else kNone (none, or several: see
+  /// storage_elements()).
   ElementId storage() const { return storage_; }
+  /// Every storage element, in state order (file order).
+  const std::vector<ElementId>& storage_elements() const { return storages_; }
+  /// True with two or more storage elements: segments carry modes and a modal response.
+  bool several_states() const { return storages_.size() > 1; }
+  /// Several storage elements: each state at t = 0−, where each came from, and why the
+  /// undetermined ones are (empty strings for the others).
+  const std::vector<double>& initial_states() const { return initial_states_; }
+  const std::vector<InitialStateSource>& initial_sources() const { return initial_sources_; }
+  const std::vector<std::string>& initial_notes() const { return initial_notes_; }
   const std::vector<Segment>& segments() const { return segments_; }
   /// The analysis span (declared, or the default rule of the format).
   const Window& window() const { return window_; }
@@ -114,12 +148,18 @@ class Solution {
 
  private:
   friend Solution solve(const Circuit&, const SolveOptions&, std::shared_ptr<NetworkCache>);
+  friend class StateSolver;
+  friend class SolveSteps;
   const Circuit* circuit_ = nullptr;
   std::shared_ptr<NetworkCache> cache_;
   SolveOptions options_;
   AppliedScenario applied_;
   Schedule schedule_;
   ElementId storage_ = kNone;
+  std::vector<ElementId> storages_;
+  std::vector<double> initial_states_;
+  std::vector<InitialStateSource> initial_sources_;
+  std::vector<std::string> initial_notes_;
   std::vector<ElementId> sources_;
   std::vector<Segment> segments_;
   Window window_;

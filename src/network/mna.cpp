@@ -88,23 +88,33 @@ Eigen::VectorXd input_values(const Circuit& circuit, const std::vector<ElementId
   return u;
 }
 
+PortMode BuildOptions::mode_of(std::size_t k) const { return k < port_modes.size() ? port_modes[k] : mode; }
+
 bool NodalSystem::switch_closed(ElementId id) const { return positions_.closed.at(switch_index_[id]); }
 
 NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& positions, const BuildOptions& options) {
-  const PortMode mode = options.mode;
   NodalSystem sys;
   sys.circuit_ = &circuit;
-  sys.port_mode_ = mode;
   sys.positions_ = positions;
   const auto& elements = circuit.elements();
   const auto n_nodes = static_cast<std::uint32_t>(circuit.nodes().size());
   const auto n_elem = static_cast<std::uint32_t>(elements.size());
-  auto storage = circuit.storage_elements();
-  sys.storage_ = storage.empty() ? kNone : storage.front();
+  // Inputs: the states first (one per storage element, in file order), then the sources.
+  sys.states_ = circuit.storage_elements();
+  sys.state_input_.assign(n_elem, kNone);
+  std::vector<PortMode> port_mode(n_elem, PortMode::port);
+  for (std::size_t k = 0; k < sys.states_.size(); ++k) {
+    sys.state_input_[sys.states_[k]] = static_cast<std::uint32_t>(k);
+    port_mode[sys.states_[k]] = options.mode_of(k);
+  }
+  sys.port_modes_.resize(sys.states_.size());
+  for (std::size_t k = 0; k < sys.states_.size(); ++k) sys.port_modes_[k] = port_mode[sys.states_[k]];
 
   sys.switch_index_.assign(n_elem, kNone);
   sys.source_input_.assign(n_elem, kNone);
-  std::uint32_t n_switch = 0, n_input = 1;
+  // With no storage element, input 0 is still reserved (for a state that is not there), so that
+  // a resistive circuit's sources keep the first edition's numbering.
+  std::uint32_t n_switch = 0, n_input = static_cast<std::uint32_t>(std::max<std::size_t>(1, sys.states_.size()));
   for (ElementId i = 0; i < n_elem; ++i) {
     if (elements[i].kind == ElementKind::switch_) sys.switch_index_[i] = n_switch++;
     if (is_independent_source(elements[i].kind)) sys.source_input_[i] = n_input++;
@@ -117,7 +127,7 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
   for (ElementId i = 0; i < n_elem; ++i) {
     const Element& e = elements[i];
     bool closed = e.kind == ElementKind::switch_ && positions.closed.at(sys.switch_index_[i]);
-    edges[i] = edge_of(e, i == sys.storage_, mode, closed);
+    edges[i] = edge_of(e, sys.state_input_[i] != kNone, port_mode[i], closed);
     if (e.sense_element != kNone) sensed[e.sense_element] = true;
   }
 
@@ -151,10 +161,12 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
     auto has = [&](ElementId id) {
       return std::find(problem.elements.begin(), problem.elements.end(), id) != problem.elements.end();
     };
-    problem.kind = has(test_port_id)   ? TopologyProblem::Kind::test_port_loop
-                   : has(sys.storage_) && elements[sys.storage_].kind == ElementKind::capacitor
-                       ? TopologyProblem::Kind::capacitor_loop
-                       : TopologyProblem::Kind::voltage_loop;
+    const bool has_capacitor = std::any_of(problem.elements.begin(), problem.elements.end(), [&](ElementId id) {
+      return id < n_elem && elements[id].kind == ElementKind::capacitor && sys.state_input_[id] != kNone;
+    });
+    problem.kind = has(test_port_id)  ? TopologyProblem::Kind::test_port_loop
+                   : has_capacitor ? TopologyProblem::Kind::capacitor_loop
+                                   : TopologyProblem::Kind::voltage_loop;
     std::erase(problem.elements, test_port_id);
     sys.problems_.push_back(std::move(problem));
   };
@@ -206,7 +218,10 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
   for (std::uint32_t c = 1; c < n_components; ++c) {
     if (crossings[c].empty()) continue;
     TopologyProblem problem;
-    bool only_inductor = crossings[c].size() == 1 && crossings[c][0] == sys.storage_;
+    // Only storage inductors cross: their currents are forced (to 0 for one alone).
+    bool only_inductor = std::all_of(crossings[c].begin(), crossings[c].end(), [&](ElementId id) {
+      return elements[id].kind == ElementKind::inductor && sys.state_input_[id] != kNone;
+    });
     problem.kind = only_inductor ? TopologyProblem::Kind::inductor_open : TopologyProblem::Kind::current_cut_set;
     problem.elements = crossings[c];
     for (NodeId n = 0; n < n_nodes; ++n)
@@ -256,7 +271,7 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
         LinearForm f = sys.fixed_voltage_[sys.fixed_index_[n]];
         double sign = other == e.pos ? 1.0 : -1.0;
         if (e.kind == ElementKind::voltage_source) f.inputs.push_back({sys.source_input_[i], sign});
-        if (e.kind == ElementKind::capacitor) f.inputs.push_back({0, sign});
+        if (e.kind == ElementKind::capacitor) f.inputs.push_back({sys.state_input_[i], sign});
         sys.fixed_voltage_.push_back(std::move(f));
         sys.tree_index_[i] = static_cast<std::uint32_t>(sys.tree_currents_.size());
         sys.tree_currents_.emplace_back();
@@ -360,7 +375,7 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
         if (j == kNone) break;  // eliminated: its voltage is fixed, its current comes from KCL
         add_voltage(j, e.pos, e.neg, 1.0);
         if (e.kind == ElementKind::voltage_source) add_b(j, sys.source_input_[i], 1.0);
-        if (e.kind == ElementKind::capacitor) add_b(j, 0, 1.0);
+        if (e.kind == ElementKind::capacitor) add_b(j, sys.state_input_[i], 1.0);
         // An inductor held at zero current is a 0 V branch: nothing more to stamp.
         if (e.kind == ElementKind::vcvs) add_voltage(j, e.sense_pos, e.sense_neg, -e.value);
         if (e.kind == ElementKind::ccvs) add_form(j, sys.sensed_current(e.sense_element), -e.value);
@@ -369,7 +384,7 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
       case Edge::current: {
         LinearForm drive;
         if (e.kind == ElementKind::current_source) drive.inputs.push_back({sys.source_input_[i], 1.0});
-        if (e.kind == ElementKind::inductor) drive.inputs.push_back({0, 1.0});
+        if (e.kind == ElementKind::inductor) drive.inputs.push_back({sys.state_input_[i], 1.0});
         if (e.kind == ElementKind::vccs) drive = sys.voltage_form(e.sense_pos, e.sense_neg, e.value);
         if (e.kind == ElementKind::cccs) {
           drive = sys.sensed_current(e.sense_element);
@@ -524,7 +539,8 @@ LinearForm NodalSystem::sensed_current(ElementId id) const {
   switch (e.kind) {
     case ElementKind::current_source: f.inputs.push_back({source_input_[id], 1.0}); break;
     case ElementKind::inductor:
-      if (id == storage_) f.inputs.push_back({0, 1.0});
+      // A port in its normal mode drives its state; held at zero, its current came from KCL.
+      if (state_input_[id] != kNone) f.inputs.push_back({state_input_[id], 1.0});
       break;
     default: break;  // open: no current
   }
@@ -567,10 +583,10 @@ LinearForm NodalSystem::test_port_current() const {
   return f;
 }
 
-LinearForm NodalSystem::port_quantity() const {
-  if (storage_ == kNone) return LinearForm{};
-  const Element& e = circuit_->elements()[storage_];
-  return e.kind == ElementKind::capacitor ? element_current(storage_) : element_voltage(storage_);
+LinearForm NodalSystem::port_quantity(std::size_t k) const {
+  if (k >= states_.size()) return LinearForm{};
+  const ElementId id = states_[k];
+  return circuit_->elements()[id].kind == ElementKind::capacitor ? element_current(id) : element_voltage(id);
 }
 
 }  // namespace netfold

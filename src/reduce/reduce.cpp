@@ -168,10 +168,14 @@ Equivalent storage_equivalent(const Circuit& circuit, const ReducedNetwork& netw
 }
 
 const ReducedNetwork& NetworkCache::get(const SwitchPositions& positions, PortMode mode) {
-  auto [it, fresh] = networks_.try_emplace(Key{positions.closed, mode});
+  return get(positions, std::vector<PortMode>(state_count_, mode));
+}
+
+const ReducedNetwork& NetworkCache::get(const SwitchPositions& positions, const std::vector<PortMode>& modes) {
+  auto [it, fresh] = networks_.try_emplace(Key{positions.closed, modes});
   if (fresh) {
     BuildOptions options;
-    options.mode = mode;
+    options.port_modes = modes;
     try {
       it->second = std::make_unique<ReducedNetwork>(*circuit_, positions, options);
     } catch (...) {

@@ -8,6 +8,7 @@
 #include <fmt/format.h>
 
 #include "netfold/diagnostics.hpp"
+#include "response/piece_terms.hpp"
 
 namespace netfold {
 
@@ -305,6 +306,7 @@ Extremes long_window_extremes(const Piece& piece, double from, double to, double
 }  // namespace
 
 Extremes find_extremes(const Piece& piece, double from, double to) {
+  if (piece.has_terms()) return terms_extremes(piece, from, to);
   const double span = to - from;
   const double f_max = fastest_frequency(piece.f) + (piece.g ? fastest_frequency(*piece.g) : 0.0);
   std::size_t n = kMinPoints;

@@ -21,6 +21,9 @@
 // representable.
 #include "response/range.hpp"
 
+#include "response/modal.hpp"
+#include "response/solve_states.hpp"
+
 #include <algorithm>
 #include <cmath>
 #include <complex>
@@ -38,7 +41,10 @@ double bound(const Wave& w) {
   return b;
 }
 
-double bound(const Piece& p) { return p.g ? bound(p.f) * bound(*p.g) : bound(p.f); }
+double bound(const Piece& p) {
+  if (p.has_terms()) return terms_bound(p);
+  return p.g ? bound(p.f) * bound(*p.g) : bound(p.f);
+}
 
 bool bounded(const std::vector<Piece>& pieces) {
   return std::all_of(pieces.begin(), pieces.end(), [](const Piece& p) { return std::isfinite(bound(p)); });
@@ -69,6 +75,19 @@ bool defined_throughout(const Solution& s, const Observable& obs) {
 // coefficients: Σ_j m_j·U_j, U_0 the bound of the state's wave, U_{1+k} = `sources`[k].
 double form_bound(const Solution& s, const Segment& seg, const LinearForm& form, const std::vector<double>& sources) {
   const std::vector<double> m = s.network(seg).magnitudes(form);
+  if (s.several_states()) {
+    // Several states: each state's own bound over the segment, then the sources from input n.
+    const std::size_t n = s.storage_elements().size();
+    double b = 0.0;
+    for (std::size_t j = 0; j < n; ++j) {
+      if (m.at(j) == 0.0) continue;
+      Piece state;
+      state.terms_f = std::make_shared<const response::Response>(seg.modal->state(static_cast<int>(j)));
+      b += m[j] * terms_bound(state);
+    }
+    for (std::size_t k = 0; k < sources.size() && k + n < m.size(); ++k) b += m[k + n] * sources[k];
+    return b;
+  }
   double b = m.at(0) * bound(seg.state);
   for (std::size_t k = 0; k < sources.size() && k + 1 < m.size(); ++k) b += m[k + 1] * sources[k];
   return b;

@@ -118,7 +118,7 @@ std::unique_ptr<Configuration> Configurations::assemble(const SwitchPositions& p
   auto c = std::make_unique<Configuration>();
   c->positions = positions;
   c->mode = mode;
-  c->system = build_nodal_system(circuit_, positions, BuildOptions{mode, std::nullopt});
+  c->system = build_nodal_system(circuit_, positions, BuildOptions{mode, std::nullopt, {}});
   if (!c->system.problems().empty()) {
     why = "its nodal equations have a structural problem";
     return nullptr;
@@ -189,7 +189,7 @@ PortMode Configurations::mode_for(const SwitchPositions& positions, const std::s
   if (!lookup(positions, PortMode::port, why)) {
     // The format's rule: an inductor whose loop is open carries no current, held at zero there;
     // any other problem the engine reports as an error before the cross-check runs.
-    const NodalSystem sys = build_nodal_system(circuit_, positions, BuildOptions{PortMode::port, std::nullopt});
+    const NodalSystem sys = build_nodal_system(circuit_, positions, BuildOptions{PortMode::port, std::nullopt, {}});
     const auto& p = sys.problems();
     const bool loop_open = !p.empty() && std::all_of(p.begin(), p.end(), [](const TopologyProblem& q) {
       return q.kind == TopologyProblem::Kind::inductor_open;
