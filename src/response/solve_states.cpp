@@ -179,7 +179,14 @@ void StateSolver::solve_segments(Solution& s) {
   bool all_given = true;
   for (ElementId id : states) all_given &= s.applied_.initial_state(id).has_value() || el[id].initial.has_value();
   if (!all_given) {
-    const ReducedNetwork& net = s.cache_->get(pre.positions);
+    // Inductors whose loop is open before t = 0 start at 0 A, held there (as with one).
+    std::vector<PortMode> pre_modes(states.size(), PortMode::port);
+    for (const auto& p : s.cache_->get(pre.positions, pre_modes).system().problems())
+      if (p.kind == TopologyProblem::Kind::inductor_open)
+        for (ElementId id : p.elements)
+          pre_modes[static_cast<std::size_t>(std::find(states.begin(), states.end(), id) - states.begin())] =
+              PortMode::held_at_zero;
+    const ReducedNetwork& net = s.cache_->get(pre.positions, pre_modes);
     if (!net.system().problems().empty()) {
       steady.why = "the network before t = 0 has a part these states cannot settle in (an open path or a loop)";
     } else if (net.rcond() < kSingularRcond) {
