@@ -7,6 +7,7 @@
 
 #include "report/json_fields.hpp"
 #include "netfold/report.hpp"
+#include "netfold/schedule.hpp"
 #include "netfold/units.hpp"
 #include "netfold/worst.hpp"
 
@@ -153,17 +154,6 @@ std::string solve_json(const SolveReport& report) {
 
 namespace {
 
-// Sample times FROM + k·resolution up to TO (a hair of slack so that TO itself is included
-// when the window is a whole number of steps).
-std::vector<double> sample_times(const Solution& sol) {
-  const Window& w = sol.window();
-  double dt = sol.resolution();
-  auto n = static_cast<std::size_t>(std::floor((w.to - w.from) / dt * (1.0 + 1e-12) + 1e-9));
-  std::vector<double> t(n + 1);
-  for (std::size_t k = 0; k <= n; ++k) t[k] = w.from + static_cast<double>(k) * dt;
-  return t;
-}
-
 // Values of each observable at each time, from the closed form (right-continuous at events).
 std::vector<std::vector<double>> sample_values(const Solution& sol, const std::vector<double>& times) {
   std::vector<std::vector<double>> values;
@@ -183,7 +173,7 @@ std::vector<std::vector<double>> sample_values(const Solution& sol, const std::v
 }  // namespace
 
 std::string waveform_csv(const Solution& sol) {
-  auto times = sample_times(sol);
+  auto times = sample_grid(sol.window(), sol.resolution());
   auto values = sample_values(sol, times);
   std::string out = "t";
   for (const auto& obs : sol.observables()) out += "," + obs.text;
@@ -202,7 +192,7 @@ std::string waveform_csv(const Solution& sol) {
 PlotData plot_data(const Solution& sol) {
   PlotData d;
   d.title = sol.circuit().title().empty() ? sol.circuit().source().path() : sol.circuit().title();
-  auto times = sample_times(sol);
+  auto times = sample_grid(sol.window(), sol.resolution());
   auto values = sample_values(sol, times);
   for (std::size_t i = 0; i < sol.observables().size(); ++i) {
     const auto& obs = sol.observables()[i];
