@@ -348,7 +348,7 @@ void write_equivalent_text(std::ostream& out, const PortEquivalent& eq, const So
   } else {
     fmt::print(out, "  v_oc undefined (R_th = ∞ with a current source driving the port)\n");
   }
-  fmt::print(out, "Norton: G_th = {}\n", eq.rth == 0.0 ? "∞" : si(1.0 / eq.rth, "S"));
+  fmt::print(out, "Norton: G_th = {}\n", std::isinf(eq.gth) ? "∞" : si(eq.gth, "S"));
   if (eq.isc_defined) {
     fmt::print(out, "  i_sc: DC {}\n", si(eq.isc.dc, "A"));
     held_state_line(out, eq.isc_state_coefficient, "A", eq, sol);
