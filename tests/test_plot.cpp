@@ -15,6 +15,7 @@
 
 #include <unistd.h>
 
+#include "temp_dir.hpp"
 #include "netfold/plot.hpp"
 
 using namespace netfold;
@@ -117,18 +118,12 @@ std::vector<Point> trace_points(const std::string& svg, std::size_t* moves = nul
 
 // Parses `svg` with Python's XML parser; false when it is not well-formed.
 bool well_formed(const std::string& svg, bool quiet = false) {
-  static int serial = 0;
-  auto path = std::filesystem::temp_directory_path() /
-              ("netfold_test_plot_" + std::to_string(::getpid()) + "_" + std::to_string(++serial) + ".svg");
-  {
-    std::ofstream f(path, std::ios::binary);
-    f << svg;
-  }
+  netfold_test::TempDir dir("plot");
+  const auto path = dir.path() / "plot.svg";
+  netfold_test::write_file(path, svg);
   std::string command = "/usr/bin/python3 -c \"import xml.dom.minidom,sys; xml.dom.minidom.parse(sys.argv[1])\" '" +
                         path.string() + "'" + (quiet ? " 2>/dev/null" : "");
-  int status = std::system(command.c_str());
-  std::filesystem::remove(path);
-  return status == 0;
+  return std::system(command.c_str()) == 0;
 }
 
 bool have_python() { return std::filesystem::exists("/usr/bin/python3"); }

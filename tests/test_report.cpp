@@ -8,6 +8,7 @@
 #include <nlohmann/json.hpp>
 
 #include "engine_helpers.hpp"
+#include "temp_dir.hpp"
 #include "netfold/report.hpp"
 #include "netfold/units.hpp"
 
@@ -163,8 +164,8 @@ TEST_CASE("a circuit above 50 V AC carries the caution in text and JSON; a 24 V 
 }
 
 TEST_CASE("an output file is written whole or not at all", "[report]") {
-  auto dir = std::filesystem::temp_directory_path() / "netfold_report_test";
-  std::filesystem::create_directories(dir);
+  netfold_test::TempDir scratch("report");
+  const auto& dir = scratch.path();
   std::ostringstream sink;
   write_output((dir / "out.csv").string(), "t,x\n0,1\n", sink);
   std::ifstream f(dir / "out.csv");
@@ -177,5 +178,4 @@ TEST_CASE("an output file is written whole or not at all", "[report]") {
   CHECK_FALSE(std::filesystem::exists("/nonexistent/dir/out.csv"));
   write_output("-", "to the stream", sink);
   CHECK(sink.str() == "to the stream");
-  std::filesystem::remove_all(dir);
 }

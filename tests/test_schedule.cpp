@@ -217,3 +217,42 @@ TEST_CASE("solve reads the schedule: its segments are the schedule's, changes in
   CHECK(moved.segments()[1].from == 4e-3);
   CHECK(moved.segments()[1].changes == std::vector<std::string>{"K1 closes"});
 }
+
+TEST_CASE("the sample grid runs from FROM by the resolution to TO with no row repeated or past TO", "[events]") {
+  // source: netlist-format.md, "CSV rows are at FROM + k·resolution ... no row is repeated".
+  auto g = sample_grid(Window{0.0, 1.0, {}}, 0.25);
+  REQUIRE(g.size() == 5);
+  CHECK(g.front() == 0.0);
+  CHECK(g[1] == 0.25);
+  CHECK(g.back() == 1.0);
+  // 0.3 / 0.1 is 2.9999999999999996 in binary and 3 · 0.1 is 0.30000000000000004: the row at
+  // TO is kept, and it is TO.
+  auto r = sample_grid(Window{0.0, 0.3, {}}, 0.1);
+  REQUIRE(r.size() == 4);
+  CHECK(r.back() == 0.3);
+  auto w = sample_grid(Window{1e-3, 2e-3, {}}, 1e-4);
+  CHECK(w.size() == 11);
+  CHECK(w.front() == 1e-3);
+  CHECK(w.back() == 2e-3);
+  // Far from t = 0 a step below the spacing of doubles would repeat rows: each is kept once.
+  auto far = sample_grid(Window{1e6, 1e6 + 1e-8, {}}, 1e-11);
+  REQUIRE(far.size() >= 2);
+  for (std::size_t k = 1; k < far.size(); ++k) CHECK(far[k] > far[k - 1]);
+  CHECK(far.back() <= 1e6 + 1e-8);
+}
+
+TEST_CASE("a degenerate sample grid is the row FROM and an oversized one is refused", "[events]") {
+  CHECK(sample_grid(Window{0.5, 1.0, {}}, 0.0) == std::vector<double>{0.5});
+  CHECK(sample_grid(Window{0.5, 1.0, {}}, std::nan("")) == std::vector<double>{0.5});
+  CHECK(sample_grid(Window{2.0, 1.0, {}}, 0.1) == std::vector<double>{2.0});
+  CHECK_THROWS_AS(sample_grid(Window{0.0, 1.0, {}}, 1e-8), NumericError);
+}
+
+TEST_CASE("the fastest source frequency is the highest of the sinusoids that have an amplitude", "[events]") {
+  Circuit c = circuit_of(
+      "V1: voltage-source a -> gnd, sine 325 V 50 Hz + cosine 2 V 150 Hz\n"
+      "V2: voltage-source b -> gnd, cosine 0 V 10 kHz\nR1: resistor a -> b, 1 ohm\n");
+  CHECK(fastest_source_frequency(c) == 150.0);  // the 10 kHz cosine drives nothing
+  CHECK(fastest_source_frequency(circuit_of("V1: voltage-source a -> gnd, dc 5 V\nR1: resistor a -> gnd, 1 ohm\n")) ==
+        0.0);
+}

@@ -13,6 +13,7 @@
 #include <vector>
 
 #include "netfold/plot.hpp"
+#include "netfold/port_equivalent.hpp"
 #include "netfold/ratings.hpp"
 #include "netfold/solve.hpp"
 #include "netfold/verify.hpp"
@@ -80,27 +81,7 @@ PlotData plot_data(const Solution& solution);
 /// "0.8127 A·cos(2π·50 Hz·t - 64.48°) - 0.3497 A·e^(-t/6.667 ms)".
 std::string wave_expression(const Wave& wave, std::string_view unit);
 
-/// A Thevenin/Norton equivalent at a port, for `equiv`.
-struct PortEquivalent {
-  std::string port;            ///< "coil_l" or "a,b"
-  NodeId node_a = kNone, node_b = kNone;
-  const Segment* segment = nullptr;
-  double rth = 0.0;            ///< ohm (may be ∞ or 0)
-  Drive voc;                   ///< DC + phasors, V
-  Drive isc;                   ///< A
-  bool voc_defined = true, isc_defined = true;
-  /// v_oc's share of the storage state, V per V or V per A; voc.dc includes it times state_value.
-  double state_coefficient = 0.0;
-  /// i_sc's share of the storage state, A per V or A per A; isc.dc includes it times state_value.
-  double isc_state_coefficient = 0.0;
-  double state_value = 0.0;        ///< the state at the chosen time, held for the equivalent
-  double at = 0.0;                 ///< the chosen time
-  bool at_storage = true;
-};
-
-/// The equivalent at the storage element (port empty) or between two nodes, in the segment
-/// holding `at`. Throws InputError for a port that is not connected or names one node twice.
-PortEquivalent port_equivalent(const Solution& solution, std::optional<std::pair<NodeId, NodeId>> port, double at);
+/// The equivalent (port_equivalent.hpp) as text and JSON.
 void write_equivalent_text(std::ostream& out, const PortEquivalent& eq, const Solution& solution);
 std::string equivalent_json(const PortEquivalent& eq, const Solution& solution);
 

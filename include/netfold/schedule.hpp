@@ -89,6 +89,18 @@ SwitchPositions positions_at(const AppliedScenario& applied, double t);
 /// (0, window end) (simultaneous events are one boundary) and at the window's end.
 Schedule build_schedule(const AppliedScenario& applied, const Window& window);
 
+/// The sample grid of reported waveforms (CSV rows, plots): FROM + k·resolution, k = 0, 1, …
+/// while ≤ TO, with a slack of 1e-12 relative and 1e-9 of a step so that rounding does not drop
+/// the row at TO; a row that rounds past TO is TO itself, and a row that rounding makes equal
+/// to the one before is left out (no row is repeated). A resolution that is not finite and
+/// positive, or a window with TO < FROM, gives the single row FROM. Throws NumericError when
+/// the grid would have more than 5e7 rows.
+std::vector<double> sample_grid(const Window& window, double resolution);
+
+/// The highest frequency (Hz) of any sinusoid of nonzero amplitude among the circuit's sources
+/// as written (0 when there is none): what sets the finest time scale a grid must resolve.
+double fastest_source_frequency(const Circuit& circuit);
+
 /// "K1 closes", "K1 opens", "supply steps by 5 V".
 std::string event_text(const Circuit& circuit, const ScheduledEvent& event);
 

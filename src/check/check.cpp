@@ -21,6 +21,7 @@
 #include "netfold/golden.hpp"
 #include "netfold/parse.hpp"
 #include "netfold/solve.hpp"
+#include "report/xml_text.hpp"
 
 namespace netfold {
 
@@ -257,24 +258,6 @@ std::string host_name() {
   return buf;
 }
 
-// Length of the valid UTF-8 sequence at s[i], or 0 when it is not one (overlong forms,
-// surrogates and values above U+10FFFF included).
-std::size_t utf8_sequence(std::string_view s, std::size_t i) {
-  auto byte = [&](std::size_t k) { return static_cast<unsigned char>(s[k]); };
-  unsigned char b = byte(i);
-  std::size_t n = b < 0x80 ? 1 : (b >> 5) == 0x6 ? 2 : (b >> 4) == 0xE ? 3 : (b >> 3) == 0x1E ? 4 : 0;
-  if (n == 0 || i + n > s.size()) return 0;
-  char32_t cp = n == 1 ? b : n == 2 ? (b & 0x1F) : n == 3 ? (b & 0x0F) : (b & 0x07);
-  for (std::size_t k = 1; k < n; ++k) {
-    if ((byte(i + k) & 0xC0) != 0x80) return 0;
-    cp = (cp << 6) | (byte(i + k) & 0x3F);
-  }
-  static constexpr char32_t kMin[] = {0, 0, 0x80, 0x800, 0x10000};
-  if (cp < kMin[n] || cp > 0x10FFFF || (cp >= 0xD800 && cp <= 0xDFFF)) return 0;
-  if (cp == 0xFFFE || cp == 0xFFFF) return 0;  // not XML characters
-  return n;
-}
-
 const char* kind_name(CaseKind kind) {
   switch (kind) {
     case CaseKind::claim: return "claim";
@@ -475,38 +458,7 @@ void write_check_text(std::ostream& out, const CheckReport& report) {
 }
 
 std::string xml_escape(std::string_view text) {
-  std::string out;
-  out.reserve(text.size());
-  for (std::size_t i = 0; i < text.size();) {
-    std::size_t n = utf8_sequence(text, i);
-    if (n == 0) {
-      out += "\xEF\xBF\xBD";
-      ++i;
-      continue;
-    }
-    if (n == 1) {
-      char ch = text[i];
-      switch (ch) {
-        case '&': out += "&amp;"; break;
-        case '<': out += "&lt;"; break;
-        case '>': out += "&gt;"; break;
-        case '"': out += "&quot;"; break;
-        case '\'': out += "&apos;"; break;
-        case '\t': out += "&#9;"; break;
-        case '\n': out += "&#10;"; break;
-        case '\r': out += "&#13;"; break;
-        default:
-          if (static_cast<unsigned char>(ch) < 0x20 || ch == 0x7F)
-            out += "\xEF\xBF\xBD";
-          else
-            out += ch;
-      }
-    } else {
-      out.append(text.substr(i, n));
-    }
-    i += n;
-  }
-  return out;
+  return detail::escape_xml(text, detail::XmlControls::references);
 }
 
 std::string junit_xml(const CheckReport& report) {

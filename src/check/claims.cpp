@@ -168,13 +168,33 @@ class ClaimEvaluator {
           e.note = fmt::format("rth is infinite: {} sees an open circuit in segment {}", storage, claim.segment);
         return e;
       }
-      default:
+      case ClaimQuantity::vth:
         if (!seg.voc_defined)
           return undefined(fmt::format("{} is undefined: {} sees an open circuit (R_th = ∞) in segment {}, so there "
                                        "is no Thevenin voltage",
                                        name, storage, claim.segment));
         return {seg.voc.value(seg.from), {}, {}};
+      // Not quantities of a segment's equivalent: evaluate() does not send them here.
+      case ClaimQuantity::peak:
+      case ClaimQuantity::max:
+      case ClaimQuantity::min:
+      case ClaimQuantity::final_value:
+      case ClaimQuantity::at_time:
+      case ClaimQuantity::amplitude:
+      case ClaimQuantity::phase:
+      case ClaimQuantity::energy:
+      case ClaimQuantity::i2t:
+      case ClaimQuantity::worst_peak:
+      case ClaimQuantity::frequency:
+      case ClaimQuantity::damping:
+      case ClaimQuantity::share_peak:
+      case ClaimQuantity::time_below:
+      case ClaimQuantity::dvdt:
+      case ClaimQuantity::didt:
+      case ClaimQuantity::rms:
+      case ClaimQuantity::power: break;
     }
+    return undefined(fmt::format("{} is not a quantity of a segment", name));
   }
 
   const Figures& figures_of(const Observable& o) {
@@ -191,7 +211,24 @@ class ClaimEvaluator {
       case ClaimQuantity::max: return {f.max, {}, fmt::format("at {}", format_si(f.t_max, "s"))};
       case ClaimQuantity::min: return {f.min, {}, fmt::format("at {}", format_si(f.t_min, "s"))};
       case ClaimQuantity::final_value: return {f.final_value, {}, {}};
-      default: break;
+      case ClaimQuantity::amplitude:
+      case ClaimQuantity::phase: break;  // the steady-state fundamental, below
+      // Not figures of an observable: evaluate() does not send them here.
+      case ClaimQuantity::tau:
+      case ClaimQuantity::rth:
+      case ClaimQuantity::vth:
+      case ClaimQuantity::at_time:
+      case ClaimQuantity::energy:
+      case ClaimQuantity::i2t:
+      case ClaimQuantity::worst_peak:
+      case ClaimQuantity::frequency:
+      case ClaimQuantity::damping:
+      case ClaimQuantity::share_peak:
+      case ClaimQuantity::time_below:
+      case ClaimQuantity::dvdt:
+      case ClaimQuantity::didt:
+      case ClaimQuantity::rms:
+      case ClaimQuantity::power: return undefined(fmt::format("{} is not a figure of an observable", claim_quantity_text(claim, c_)));
     }
     const char* what = claim.quantity == ClaimQuantity::amplitude ? "amplitude" : "phase";
     if (o.kind == ObservableKind::element_power)

@@ -1,10 +1,12 @@
 #include "netfold/schedule.hpp"
 
 #include <algorithm>
+#include <cmath>
 #include <stdexcept>
 
 #include <fmt/format.h>
 
+#include "netfold/diagnostics.hpp"
 #include "netfold/units.hpp"
 
 namespace netfold {
@@ -137,6 +139,37 @@ void Schedule::split_segment(std::size_t k, const ScheduledEvent& event, const S
       segments[j].positions.closed[slot] = after.closed[slot];
     }
   }
+}
+
+std::vector<double> sample_grid(const Window& window, double resolution) {
+  // Beyond this a grid is gigabytes: a resolution mistake, refused rather than allocated.
+  constexpr double kMaxGridRows = 5e7;
+  const double span = window.to - window.from;
+  if (!(resolution > 0.0) || !std::isfinite(resolution) || !(span >= 0.0)) return {window.from};
+  // The slack keeps the row at TO when span / resolution is a whole number that rounding
+  // put a hair below it (0.3 / 0.1 = 2.9999999999999996).
+  const double steps = std::floor(span / resolution * (1.0 + 1e-12) + 1e-9);
+  if (steps + 1.0 > kMaxGridRows)
+    throw NumericError(fmt::format("the sample grid of {} .. {} at a resolution of {} has {:.3g} rows, more than "
+                                   "the 5e7 it may have",
+                                   format_si(window.from, "s"), format_si(window.to, "s"), format_si(resolution, "s"),
+                                   steps + 1.0));
+  const auto n = static_cast<std::size_t>(steps) + 1;
+  std::vector<double> out;
+  out.reserve(n);
+  for (std::size_t k = 0; k < n; ++k) {
+    const double t = std::min(window.from + static_cast<double>(k) * resolution, window.to);
+    if (out.empty() || t > out.back()) out.push_back(t);
+  }
+  return out;
+}
+
+double fastest_source_frequency(const Circuit& c) {
+  double f = 0.0;
+  for (const auto& e : c.elements())
+    for (const auto& s : e.waveform.sinusoids)
+      if (s.amplitude != 0.0) f = std::max(f, s.frequency);
+  return f;
 }
 
 std::string event_text(const Circuit& c, const ScheduledEvent& ev) {

@@ -11,6 +11,7 @@
 #include <fmt/format.h>
 
 #include "netfold/units.hpp"
+#include "report/xml_text.hpp"
 
 namespace netfold {
 namespace {
@@ -45,68 +46,7 @@ void put(std::string& out, fmt::format_string<Args...> format, Args&&... args) {
   fmt::format_to(std::back_inserter(out), format, std::forward<Args>(args)...);
 }
 
-// Length of the valid UTF-8 sequence at s[i], or 0. XML parsers reject malformed UTF-8, so the
-// escaper must know where sequences end; overlong forms and surrogates count as malformed.
-std::size_t utf8_sequence_length(std::string_view s, std::size_t i) {
-  auto byte = [&](std::size_t k) { return static_cast<unsigned char>(s[k]); };
-  unsigned char b0 = byte(i);
-  if (b0 < 0x80) return 1;
-  std::size_t len = 0;
-  unsigned char lo = 0x80, hi = 0xBF;
-  if (b0 >= 0xC2 && b0 <= 0xDF) {
-    len = 2;
-  } else if (b0 >= 0xE0 && b0 <= 0xEF) {
-    len = 3;
-    if (b0 == 0xE0) lo = 0xA0;
-    if (b0 == 0xED) hi = 0x9F;
-  } else if (b0 >= 0xF0 && b0 <= 0xF4) {
-    len = 4;
-    if (b0 == 0xF0) lo = 0x90;
-    if (b0 == 0xF4) hi = 0x8F;
-  } else {
-    return 0;
-  }
-  if (i + len > s.size()) return 0;
-  if (byte(i + 1) < lo || byte(i + 1) > hi) return 0;
-  for (std::size_t k = 2; k < len; ++k)
-    if (byte(i + k) < 0x80 || byte(i + k) > 0xBF) return 0;
-  // U+FFFE and U+FFFF are not XML characters.
-  if (len == 3 && b0 == 0xEF && byte(i + 1) == 0xBF && byte(i + 2) >= 0xBE) return 0;
-  return len;
-}
-
-// Text content or attribute value. Control characters (not allowed in XML 1.0) become '?',
-// malformed UTF-8 becomes U+FFFD, so that any name still yields a well-formed document.
-std::string escape_xml(std::string_view s) {
-  std::string out;
-  out.reserve(s.size());
-  for (std::size_t i = 0; i < s.size();) {
-    char c = s[i];
-    switch (c) {
-      case '&': out += "&amp;"; ++i; continue;
-      case '<': out += "&lt;"; ++i; continue;
-      case '>': out += "&gt;"; ++i; continue;
-      case '"': out += "&quot;"; ++i; continue;
-      case '\'': out += "&apos;"; ++i; continue;
-      default: break;
-    }
-    auto b = static_cast<unsigned char>(c);
-    if (b < 0x20) {
-      out += (c == '\t') ? ' ' : '?';  // newlines would not render in an SVG text either
-      ++i;
-      continue;
-    }
-    std::size_t len = utf8_sequence_length(s, i);
-    if (len == 0) {
-      out += "\xEF\xBF\xBD";
-      ++i;
-      continue;
-    }
-    out.append(s.substr(i, len));
-    i += len;
-  }
-  return out;
-}
+std::string escape_xml(std::string_view s) { return detail::escape_xml(s, detail::XmlControls::svg_line); }
 
 // Rough rendered width of a sans-serif string; used only to lay out legends and labels.
 double text_width(std::string_view s, double font_size) {

@@ -7,6 +7,7 @@
 
 #include "report/json_fields.hpp"
 #include "netfold/report.hpp"
+#include "netfold/schedule.hpp"
 #include "netfold/units.hpp"
 #include "netfold/worst.hpp"
 
@@ -153,17 +154,6 @@ std::string solve_json(const SolveReport& report) {
 
 namespace {
 
-// Sample times FROM + k·resolution up to TO (a hair of slack so that TO itself is included
-// when the window is a whole number of steps).
-std::vector<double> sample_times(const Solution& sol) {
-  const Window& w = sol.window();
-  double dt = sol.resolution();
-  auto n = static_cast<std::size_t>(std::floor((w.to - w.from) / dt * (1.0 + 1e-12) + 1e-9));
-  std::vector<double> t(n + 1);
-  for (std::size_t k = 0; k <= n; ++k) t[k] = w.from + static_cast<double>(k) * dt;
-  return t;
-}
-
 // Values of each observable at each time, from the closed form (right-continuous at events).
 std::vector<std::vector<double>> sample_values(const Solution& sol, const std::vector<double>& times) {
   std::vector<std::vector<double>> values;
@@ -183,7 +173,7 @@ std::vector<std::vector<double>> sample_values(const Solution& sol, const std::v
 }  // namespace
 
 std::string waveform_csv(const Solution& sol) {
-  auto times = sample_times(sol);
+  auto times = sample_grid(sol.window(), sol.resolution());
   auto values = sample_values(sol, times);
   std::string out = "t";
   for (const auto& obs : sol.observables()) out += "," + obs.text;
@@ -202,7 +192,7 @@ std::string waveform_csv(const Solution& sol) {
 PlotData plot_data(const Solution& sol) {
   PlotData d;
   d.title = sol.circuit().title().empty() ? sol.circuit().source().path() : sol.circuit().title();
-  auto times = sample_times(sol);
+  auto times = sample_grid(sol.window(), sol.resolution());
   auto values = sample_values(sol, times);
   for (std::size_t i = 0; i < sol.observables().size(); ++i) {
     const auto& obs = sol.observables()[i];
@@ -221,110 +211,13 @@ PlotData plot_data(const Solution& sol) {
   return d;
 }
 
-namespace {
-
-// The storage element is held at its value at --at, so it adds a constant share to both the
-// open-circuit voltage and the short-circuit current at the port: i_sc is the current that
-// really flows in a short between the two nodes (the element's discharge included).
-PortEquivalent hold_state(PortEquivalent eq) {
-  if (eq.voc_defined) eq.voc.dc += eq.state_coefficient * eq.state_value;
-  if (eq.isc_defined) eq.isc.dc += eq.isc_state_coefficient * eq.state_value;
-  return eq;
-}
-
-}  // namespace
-
-PortEquivalent port_equivalent(const Solution& sol, std::optional<std::pair<NodeId, NodeId>> port, double at) {
-  const Circuit& c = sol.circuit();
-  PortEquivalent eq;
-  eq.at = at;
-  eq.segment = &sol.segment_at(at);
-  const Segment& seg = *eq.segment;
-  if (!port) {
-    if (sol.storage() == kNone)
-      throw argument_error("equiv", "the circuit has no capacitor or inductor; name a port with --port A,B");
-    const Element& st = c.element(sol.storage());
-    eq.port = st.name;
-    eq.node_a = st.pos;
-    eq.node_b = st.neg;
-    eq.rth = seg.equivalent.rth;
-    eq.voc = seg.voc;
-    eq.isc = seg.isc;
-    eq.voc_defined = seg.voc_defined;
-    eq.isc_defined = seg.isc_defined;
-    eq.state_value = seg.state.value(at);
-    return eq;
-  }
-  auto [a, b] = *port;
-  eq.at_storage = false;
-  eq.node_a = a;
-  eq.node_b = b;
-  eq.port = c.nodes()[a] + "," + c.nodes()[b];
-  if (a == b) throw argument_error("--port", fmt::format("the port names node '{}' twice; give two different nodes", c.nodes()[a]));
-  const NodalSystem& plain = sol.network(seg).system();
-  for (NodeId n : {a, b})
-    if (plain.node_floating(n))
-      throw argument_error("--port", fmt::format("node '{}' is not connected to the rest of the network in segment {} "
-                                                 "(from {}); choose a connected node",
-                                                 c.nodes()[n], seg.number, format_si(seg.from, "s", 4)));
-  eq.state_value = seg.state.value(at);
-  BuildOptions options;
-  options.mode = seg.mode;
-  options.test_port = port;
-  ReducedNetwork tested(c, seg.positions, options);
-  bool shorted = false;
-  for (const auto& p : tested.system().problems()) shorted |= p.kind == TopologyProblem::Kind::test_port_loop;
-  if (shorted) {
-    // An ideal branch already joins the two nodes: R_th = 0, v_oc is that branch's voltage.
-    std::vector<double> k = sol.network(seg).coefficients(plain.node_difference(a, b));
-    eq.rth = 0.0;
-    eq.voc = sol.drive_of(k, seg);
-    eq.state_coefficient = k[0];
-    eq.isc_defined = false;
-    return hold_state(eq);
-  }
-  if (tested.rcond() < kSingularRcond)
-    throw NumericError(fmt::format("the equations with a test source at {} are singular (reciprocal condition {:.1e})",
-                                   eq.port, tested.rcond()));
-  const LinearForm test_current = tested.system().test_port_current();
-  std::vector<double> k = tested.coefficients(test_current);
-  const std::uint32_t t = tested.system().test_port_input();
-  double ktt = k[t];
-  if (tested.negligible(test_current, t, ktt)) ktt = 0.0;
-  k.resize(t);  // the state and the sources; drop the test input
-  if (ktt == 0.0) {
-    eq.rth = kInfinity;
-    bool driven = false;
-    for (double v : k) driven |= v != 0.0;
-    if (driven) {
-      // Current sources push into an open port: its voltage is unbounded, a short's current is not.
-      eq.voc_defined = false;
-      eq.isc = sol.drive_of(k, seg);
-      eq.isc_state_coefficient = k[0];
-      return hold_state(eq);
-    }
-    std::vector<double> kv = sol.network(seg).coefficients(plain.node_difference(a, b));
-    eq.voc = sol.drive_of(kv, seg);
-    eq.state_coefficient = kv[0];
-    return hold_state(eq);  // i_sc = 0
-  }
-  eq.isc = sol.drive_of(k, seg);
-  eq.isc_state_coefficient = k[0];
-  eq.rth = -1.0 / ktt;
-  std::vector<double> kv = k;
-  for (double& v : kv) v = -v / ktt;
-  eq.voc = sol.drive_of(kv, seg);
-  eq.state_coefficient = kv[0];
-  return hold_state(eq);
-}
-
 std::string equivalent_json(const PortEquivalent& eq, const Solution& sol) {
   nlohmann::json j;
   j["port"] = eq.port;
   j["at"] = detail::json_number(eq.at);
   j["segment"] = eq.segment->number;
   j["rth"] = detail::json_number(eq.rth);
-  j["gth"] = eq.rth == 0.0 ? nlohmann::json(nullptr) : detail::json_number(1.0 / eq.rth);
+  j["gth"] = detail::json_number(eq.gth);  // null for ∞ (R_th = 0)
   j["vth_dc"] = eq.voc_defined ? detail::json_number(eq.voc.dc) : nlohmann::json(nullptr);
   j["vth_phasors"] = eq.voc_defined ? phasors_json(eq.voc) : nlohmann::json(nullptr);
   j["isc_dc"] = eq.isc_defined ? detail::json_number(eq.isc.dc) : nlohmann::json(nullptr);

@@ -8,6 +8,7 @@
 
 #include "netfold/report.hpp"
 #include "netfold/units.hpp"
+#include "response/forced_response.hpp"
 
 namespace netfold {
 
@@ -296,12 +297,9 @@ void write_explanation(std::ostream& out, const Solution& sol) {
     fmt::print(out, "    d. forced response {}_ss = H(jω)·{} with H(jω) = 1/(1 + jωτ):\n", sym, cap ? "v_oc" : "i_sc");
     if (drive.dc != 0.0 || drive.phasors.empty())
       fmt::print(out, "       DC: H(0) = 1 → {}\n", si(drive.dc, dunit));
-    for (const auto& p : drive.phasors) {
-      double wt = 2.0 * std::numbers::pi * p.frequency * s.tau;
-      std::complex<double> h = 1.0 / std::complex<double>(1.0, wt);
-      fmt::print(out, "       {}: ωτ = {}, |H| = {}, ∠H = {} → {}\n", si(p.frequency, "Hz"), format_si(wt, "", 4),
-                 format_si(std::abs(h), "", 4), degrees(std::arg(h)), cosine_text({p.frequency, p.value * h}, unit));
-    }
+    for (const auto& f : detail::forced_phasors(s, drive))
+      fmt::print(out, "       {}: ωτ = {}, |H| = {}, ∠H = {} → {}\n", si(f.frequency, "Hz"), format_si(f.omega_tau, "", 4),
+                 format_si(std::abs(f.gain), "", 4), degrees(std::arg(f.gain)), cosine_text(f.response, unit));
     auto steady = s.state.steady_state();
     if (steady) {
       double ss0 = steady->value(s.from);
@@ -348,7 +346,7 @@ void write_equivalent_text(std::ostream& out, const PortEquivalent& eq, const So
   } else {
     fmt::print(out, "  v_oc undefined (R_th = ∞ with a current source driving the port)\n");
   }
-  fmt::print(out, "Norton: G_th = {}\n", eq.rth == 0.0 ? "∞" : si(1.0 / eq.rth, "S"));
+  fmt::print(out, "Norton: G_th = {}\n", std::isinf(eq.gth) ? "∞" : si(eq.gth, "S"));
   if (eq.isc_defined) {
     fmt::print(out, "  i_sc: DC {}\n", si(eq.isc.dc, "A"));
     held_state_line(out, eq.isc_state_coefficient, "A", eq, sol);

@@ -285,14 +285,6 @@ double slowest_frequency(const Circuit& c) {
   return f;
 }
 
-double fastest_frequency(const Circuit& c) {
-  double f = 0.0;
-  for (const auto& e : c.elements())
-    for (const auto& s : e.waveform.sinusoids)
-      if (s.amplitude != 0.0) f = std::max(f, s.frequency);
-  return f;
-}
-
 double level_before_zero(const Waveform& w) {
   double v = w.dc;
   for (const auto& s : w.steps)
@@ -368,7 +360,7 @@ void check_resolution(const Circuit& c, const Window& window, double resolution,
                      format_si(resolution, "s"), format_si(window.from, "s"), format_si(window.to, "s"), samples,
                      kMaxSamples, format_si((window.to - window.from) / kMaxSamples, "s")));
   }
-  if (double f_fast = fastest_frequency(c); f_fast > 0.0 && resolution > 0.25 / f_fast)
+  if (double f_fast = fastest_source_frequency(c); f_fast > 0.0 && resolution > 0.25 / f_fast)
     warnings.push_back(fmt::format("the resolution {} is coarser than a quarter period of the {} sinusoid: the CSV "
                                    "and the plot cannot show it (they alias it); the figures come from the closed "
                                    "form and are exact; set 'resolution' to at most {} to see the waveform",

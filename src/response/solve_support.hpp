@@ -32,7 +32,6 @@ void check_value_span(const Circuit& c);
 std::vector<std::string> floating_part_warnings(const Circuit& c, const std::vector<const NodalSystem*>& systems,
                                                 ElementId storage);
 double slowest_frequency(const Circuit& c);
-double fastest_frequency(const Circuit& c);
 double level_before_zero(const Waveform& w);
 Window default_window(const AppliedScenario& applied, NetworkCache& cache, ElementId storage, double tau_scale,
                       std::vector<std::string>& warnings, double states_tau = 0.0);

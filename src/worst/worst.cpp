@@ -89,13 +89,6 @@ auto at_argument(const Circuit& c, const Sweep& sw, double x, F&& f) -> decltype
   }
 }
 
-double fastest_frequency(const Circuit& c) {
-  double f = 0.0;
-  for (const auto& e : c.elements())
-    for (const auto& s : e.waveform.sinusoids) f = std::max(f, s.frequency);
-  return f;
-}
-
 // Golden-section search for a local maximum of f in [a, b] (J. Kiefer, 1953), to `tol`.
 template <typename F>
 std::pair<double, double> golden_maximum(F&& f, double a, double b, double tol) {
@@ -148,7 +141,7 @@ std::vector<double> sweep_grid(const Sweep& sw, const Solution& nominal) {
     intervals = std::ceil(range / *sw.step - 1e-9);
   } else if (sw.target == SweepTarget::switch_closes) {
     // The peak varies with the closing instant at twice the supply frequency: 36 points a period.
-    intervals = std::max(intervals, std::ceil(range * fastest_frequency(nominal.circuit()) * 36.0));
+    intervals = std::max(intervals, std::ceil(range * fastest_source_frequency(nominal.circuit()) * 36.0));
   }
   intervals = std::clamp(intervals, 1.0, 100000.0);
   auto n = static_cast<std::size_t>(intervals);
