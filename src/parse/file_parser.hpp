@@ -54,6 +54,7 @@ class FileParser : Reader {
     Claim claim;
     std::optional<PendingObservable> observable;
     std::optional<NameRef> element;
+    SourceLoc quantity_loc;  // the quantity's first word
   };
 
   // Lookups during resolution: the builder's tables, and the names met on lines that failed.
@@ -88,7 +89,11 @@ class FileParser : Reader {
   Attr take_attribute(const KindInfo& info);
   void parse_attribute(Element& e, const KindInfo& info, Attr attr, const Token& keyword, AttributeState& state);
   void parse_rating(Element& e, const Text& place, Dimension dim, RatingKind kind, SourceLoc loc);
+  void parse_rated(Element& e, const KindInfo& info, const Token& keyword);
   void parse_event(Element& e, const Token& keyword, bool closes, AttributeState& state);
+  EventTrigger take_trigger(const Token& keyword, bool closes);
+  Tolerance parse_tolerance(const KindInfo& info, const Token& keyword);
+  double percent_fraction(const RawValue& v, const KindInfo& info);
   void parse_sense(const Element& e, const KindInfo& info, SenseRef& sense);
   void note_broken_element();
 
@@ -105,6 +110,9 @@ class FileParser : Reader {
   void parse_expect(const Token& keyword);
   Dimension parse_claim_quantity(PendingClaim& pending);
   void parse_claim_bound(Claim& c, std::size_t first);
+  Dimension parse_share(PendingClaim& pending);
+  Dimension parse_time_below(PendingClaim& pending);
+  void check_claim(const PendingClaim& p) const;
   void parse_golden_tolerance(const Token& keyword);
   int take_segment();
   std::string span_text(std::size_t first, std::size_t last) const;

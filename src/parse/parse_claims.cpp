@@ -1,4 +1,5 @@
 // `expect` lines: the claim quantity, its comparison and value.
+#include <array>
 #include <charconv>
 
 #include <fmt/format.h>
@@ -17,6 +18,38 @@ std::optional<CompareOp> comparison(TokenKind kind) {
   if (kind == TokenKind::greater) return CompareOp::gt;
   if (kind == TokenKind::greater_equal) return CompareOp::ge;
   return std::nullopt;
+}
+
+struct NamedClaim {
+  std::string_view word;
+  ClaimQuantity quantity;
+  Dimension dimension;
+};
+
+// Claims on a segment: `tau[k]` and the like.
+constexpr std::array<NamedClaim, 5> kSegmentClaims{{
+    {"tau", ClaimQuantity::tau, Dimension::time},
+    {"rth", ClaimQuantity::rth, Dimension::resistance},
+    {"vth", ClaimQuantity::vth, Dimension::voltage},
+    {"frequency", ClaimQuantity::frequency, Dimension::frequency},  // (v2) damped natural frequency
+    {"damping", ClaimQuantity::damping, Dimension::ratio},          // (v2) damping ratio
+}};
+
+// Claims on an element: `energy X` and the like.
+constexpr std::array<NamedClaim, 6> kElementClaims{{
+    {"energy", ClaimQuantity::energy, Dimension::energy},
+    {"i2t", ClaimQuantity::i2t, Dimension::action},
+    {"dvdt", ClaimQuantity::dvdt, Dimension::voltage_rate},  // (v2) of a capacitor
+    {"didt", ClaimQuantity::didt, Dimension::current_rate},  // (v2)
+    {"rms", ClaimQuantity::rms, Dimension::current},         // (v2)
+    {"power", ClaimQuantity::power, Dimension::power},       // (v2) of a resistor
+}};
+
+template <std::size_t N>
+const NamedClaim* find_claim(const std::array<NamedClaim, N>& table, std::string_view word) {
+  for (const NamedClaim& c : table)
+    if (c.word == word) return &c;
+  return nullptr;
 }
 
 }  // namespace
@@ -81,14 +114,17 @@ Dimension FileParser::parse_claim_quantity(PendingClaim& pending) {
   if (q.kind != TokenKind::word) fail_expected("a claim, such as 'tau = 4.7 ms ± 1%'");
   std::string_view k = q.text;
   take();
-  if (k == "tau" || k == "rth" || k == "vth") {
-    c.quantity = k == "tau" ? ClaimQuantity::tau : k == "rth" ? ClaimQuantity::rth : ClaimQuantity::vth;
+  pending.quantity_loc = q.loc;
+  if (const NamedClaim* n = find_claim(kSegmentClaims, k)) {
+    c.quantity = n->quantity;
     if (accept(TokenKind::lbracket)) {
       c.segment = take_segment();
       expect(TokenKind::rbracket, "']' after the segment number");
     }
-    return k == "tau" ? Dimension::time : k == "rth" ? Dimension::resistance : Dimension::voltage;
+    return n->dimension;
   }
+  if (k == "share") return parse_share(pending);
+  if (k == "time-below") return parse_time_below(pending);
   if (k == "peak" || k == "max" || k == "min" || k == "final" || k == "amplitude" || k == "phase" || k == "worst") {
     if (k == "worst") {
       if (!at_word("peak")) fail_expected("'peak' after 'worst'");
@@ -109,16 +145,72 @@ Dimension FileParser::parse_claim_quantity(PendingClaim& pending) {
     }
     return k == "phase" ? Dimension::angle : observable_dimension(o.kind);
   }
-  if (k == "energy" || k == "i2t") {
-    c.quantity = k == "energy" ? ClaimQuantity::energy : ClaimQuantity::i2t;
+  if (const NamedClaim* n = find_claim(kElementClaims, k)) {
+    c.quantity = n->quantity;
     if (peek().kind == TokenKind::at_sign) fail(peek().loc, fmt::format("'{}' takes an element, not a node", k));
     const Token& x = take_name(Text("an element name after '", k, "'"));
     pending.element = NameRef{x.text, x.loc};
-    return k == "energy" ? Dimension::energy : Dimension::action;
+    return n->dimension;
   }
   fail(q.loc, fmt::format("unknown claim quantity '{}'; expected tau, rth, vth, peak, max, min, final, amplitude, "
-                          "phase, energy, i2t, worst peak, or OBS at TIME",
+                          "phase, energy, i2t, worst peak, frequency, damping, share peak, time-below, dvdt, didt, rms, "
+                          "power, or OBS at TIME",
                           word_as_written(q)));
+}
+
+// (v2) `share peak OBS > LEVEL`: the claim's value is a percentage of the sweeps' range.
+Dimension FileParser::parse_share(PendingClaim& pending) {
+  Claim& c = pending.claim;
+  const std::size_t first = at_ - 1;  // `share`
+  if (!at_word("peak")) fail_expected("'peak' after 'share'");
+  take();
+  c.quantity = ClaimQuantity::share_peak;
+  pending.observable = parse_observable();
+  const std::size_t last = at_ - 1;
+  if (peek().kind != TokenKind::greater) fail_expected("'>' and a level after the observable");
+  take();
+  const Dimension dim = observable_dimension(pending.observable->kind);
+  RawValue level = take_value(dimension_noun(dim));
+  c.level = to_si(level, dim, fmt::format("the level of '{}'", span_text(first, last)));
+  if (!(c.level > 0)) report(level.loc, fmt::format("'share peak' needs a positive level, found '{}'", level.quote()));
+  return Dimension::percent;
+}
+
+// (v2) `time-below OBS LEVEL [after TIME]`: the claim's value is a time.
+Dimension FileParser::parse_time_below(PendingClaim& pending) {
+  Claim& c = pending.claim;
+  c.quantity = ClaimQuantity::time_below;
+  pending.observable = parse_observable();
+  const Dimension dim = observable_dimension(pending.observable->kind);
+  RawValue level = take_value(Text("a level (", dimension_noun(dim), ") after the observable"));
+  c.level = to_si(level, dim, "the level of 'time-below'");
+  if (!(c.level > 0)) report(level.loc, fmt::format("'time-below' needs a positive level, found '{}'", level.quote()));
+  if (at_word("after")) {
+    take();
+    RawValue after = take_value("a time");
+    c.after = to_si(after, Dimension::time, "'after'");
+    if (std::string fault = time_limit_fault(after, *c.after); !fault.empty()) report(after.loc, std::move(fault));
+    else if (*c.after < 0)
+      report(after.loc, fmt::format("'after' is a time at or after t = 0, found '{}'", after.quote()));
+  }
+  return Dimension::time;
+}
+
+// What a claim needs of the circuit, checked once every element and sweep is known.
+void FileParser::check_claim(const PendingClaim& p) const {
+  const Claim& c = p.claim;
+  auto needs_kind = [&](std::string_view word, ElementKind kind) {
+    const Element& e = builder_.elements().at(c.element);
+    if (e.kind != kind)
+      fail(p.element->loc, fmt::format("'{}' takes {}, but '{}' is {}", word, kind_info(kind).noun, e.name,
+                                       kind_info(e.kind).noun));
+  };
+  if (c.quantity == ClaimQuantity::dvdt) needs_kind("dvdt", ElementKind::capacitor);
+  if (c.quantity == ClaimQuantity::power) needs_kind("power", ElementKind::resistor);
+  if (c.quantity == ClaimQuantity::share_peak && sweeps_.empty())
+    fail(p.quantity_loc, "'share peak' is the share of the declared sweeps' range in which the peak exceeds its "
+                         "level, but this file declares no sweep; add a line such as 'sweep SWITCH.closes 0 ms .. "
+                         "20 ms'");
 }
 
 // The comparison of a claim whose quantity ends before token `op_index`: `OP VALUE [± TOL]`.

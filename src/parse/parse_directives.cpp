@@ -152,7 +152,23 @@ void FileParser::parse_watch() {
   expect_end("',' or end of line");
 }
 
-void FileParser::parse_sweep() { sweeps_.push_back(parse_sweep_body(false)); }
+// `sweep TARGET FROM .. TO [step S][, TARGET FROM .. TO [step S]]...`: (v2) the targets of one
+// line vary jointly.
+void FileParser::parse_sweep() {
+  const std::size_t line_start = sweeps_.size();
+  do {
+    PendingSweep s = parse_sweep_body(false);
+    s.joins_previous = sweeps_.size() > line_start;
+    for (std::size_t i = line_start; i < sweeps_.size(); ++i) {
+      if (sweeps_[i].element.name == s.element.name && sweeps_[i].member == s.member)
+        fail(s.loc, fmt::format("'{}.{}' is named twice on this sweep line; a joint sweep varies each target once",
+                                s.element.name, s.member_text));
+    }
+    const bool stepped = s.step.has_value();
+    sweeps_.push_back(std::move(s));
+    if (peek().kind != TokenKind::comma) expect_end(stepped ? "',' or end of line" : "'step S', ',' or end of line");
+  } while (accept(TokenKind::comma));
+}
 
 void FileParser::parse_golden_tolerance(const Token& keyword) {
   once(golden_line_, keyword);
@@ -220,10 +236,12 @@ void FileParser::resolve_references() {
     resolving([&] {
       if (p.observable) p.claim.observable = resolve_observable(scope, *p.observable);
       if (p.element) p.claim.element = resolve_element(scope, *p.element);
+      check_claim(p);
       builder_.add_claim(std::move(p.claim));
     });
   }
-  for (const PendingSweep& s : sweeps_) resolving([&] { builder_.add_sweep(resolve_sweep(scope, s)); });
+  for (const PendingSweep& s : sweeps_)
+    resolving([&] { builder_.add_sweep(resolve_sweep(scope, s), s.joins_previous); });
 }
 
 }  // namespace netfold::parser

@@ -14,33 +14,48 @@ struct AttrName {
   Attr attr;
 };
 
-constexpr std::array<AttrName, 10> kAttrNames{{
+constexpr std::array<AttrName, 16> kAttrNames{{
     {"rated", Attr::rated}, {"pulse-rated", Attr::pulse_rated}, {"initial", Attr::initial},
     {"closes", Attr::closes}, {"opens", Attr::opens}, {"on", Attr::on}, {"off", Attr::off},
     {"rated-i2t", Attr::rated_i2t}, {"gain", Attr::gain}, {"sense", Attr::sense},
+    {"forward", Attr::forward}, {"breakdown", Attr::breakdown}, {"tolerance", Attr::tolerance},
+    {"rated-dvdt", Attr::rated_dvdt}, {"rated-didt", Attr::rated_didt}, {"rated-rms", Attr::rated_rms},
 }};
 
-constexpr std::array<KindInfo, 10> kKinds{{
-    {ElementKind::resistor, "resistor", "a resistor", bit(Attr::rated) | bit(Attr::pulse_rated),
-     "rated P W, pulse-rated E J"},
-    {ElementKind::capacitor, "capacitor", "a capacitor", bit(Attr::initial) | bit(Attr::rated),
-     "initial V, rated V"},
-    {ElementKind::inductor, "inductor", "an inductor", bit(Attr::initial) | bit(Attr::rated), "initial A, rated A"},
-    {ElementKind::voltage_source, "voltage-source", "a voltage-source", bit(Attr::rated), "rated A"},
-    {ElementKind::current_source, "current-source", "a current-source", 0, ""},
+// `rated-i2t` goes on every kind that carries a current of its own (v2); the controlled
+// sources take no ratings.
+constexpr std::uint32_t kI2t = bit(Attr::rated_i2t);
+constexpr std::uint32_t kControlled = bit(Attr::gain) | bit(Attr::sense);
+
+constexpr std::array<KindInfo, 11> kKinds{{
+    {ElementKind::resistor, "resistor", "a resistor", bit(Attr::rated) | bit(Attr::pulse_rated) | kI2t |
+     bit(Attr::tolerance), "rated P W, pulse-rated E J, rated-i2t X A2s, tolerance P%"},
+    {ElementKind::capacitor, "capacitor", "a capacitor", bit(Attr::initial) | bit(Attr::rated) | bit(Attr::rated_dvdt) |
+     bit(Attr::rated_rms) | kI2t | bit(Attr::tolerance),
+     "initial V, rated V, rated-dvdt X V/us, rated-rms X A, rated-i2t X A2s, tolerance P%"},
+    {ElementKind::inductor, "inductor", "an inductor", bit(Attr::initial) | bit(Attr::rated) | bit(Attr::rated_didt) |
+     kI2t | bit(Attr::tolerance), "initial A, rated A, rated-didt X A/us, rated-i2t X A2s, tolerance P%"},
+    {ElementKind::voltage_source, "voltage-source", "a voltage-source", bit(Attr::rated) | kI2t | bit(Attr::tolerance),
+     "rated A, rated-i2t X A2s, tolerance P%"},
+    {ElementKind::current_source, "current-source", "a current-source", kI2t | bit(Attr::tolerance),
+     "rated-i2t X A2s, tolerance P%"},
     {ElementKind::switch_, "switch", "a switch",
-     bit(Attr::closes) | bit(Attr::opens) | bit(Attr::on) | bit(Attr::off) | bit(Attr::rated) | bit(Attr::rated_i2t),
-     "closes at T, opens at T, on R, off R, rated A, rated-i2t X A2s"},
-    {ElementKind::vcvs, "vcvs", "a vcvs", bit(Attr::gain) | bit(Attr::sense), "gain K, sense NODE -> NODE"},
-    {ElementKind::vccs, "vccs", "a vccs", bit(Attr::gain) | bit(Attr::sense), "gain G S, sense NODE -> NODE"},
-    {ElementKind::ccvs, "ccvs", "a ccvs", bit(Attr::gain) | bit(Attr::sense), "gain R ohm, sense ELEMENT"},
-    {ElementKind::cccs, "cccs", "a cccs", bit(Attr::gain) | bit(Attr::sense), "gain K, sense ELEMENT"},
+     bit(Attr::closes) | bit(Attr::opens) | bit(Attr::on) | bit(Attr::off) | bit(Attr::rated) | kI2t |
+     bit(Attr::rated_didt),
+     "closes at T, opens at T, on R, off R, rated A, rated V, rated-i2t X A2s, rated-didt X A/us"},
+    {ElementKind::vcvs, "vcvs", "a vcvs", kControlled, "gain K, sense NODE -> NODE"},
+    {ElementKind::vccs, "vccs", "a vccs", kControlled, "gain G S, sense NODE -> NODE"},
+    {ElementKind::ccvs, "ccvs", "a ccvs", kControlled, "gain R ohm, sense ELEMENT"},
+    {ElementKind::cccs, "cccs", "a cccs", kControlled, "gain K, sense ELEMENT"},
+    {ElementKind::diode, "diode", "a diode",
+     bit(Attr::forward) | bit(Attr::on) | bit(Attr::off) | bit(Attr::breakdown) | bit(Attr::rated) | kI2t,
+     "forward V, on R, off R, breakdown V, rated A, rated V, rated-i2t X A2s"},
 }};
 
 }  // namespace
 
 const std::string_view kKindList =
-    "resistor, capacitor, inductor, voltage-source, current-source, switch, vcvs, vccs, ccvs or cccs";
+    "resistor, capacitor, inductor, voltage-source, current-source, switch, diode, vcvs, vccs, ccvs or cccs";
 
 const KindInfo* find_kind(std::string_view keyword) {
   for (const auto& k : kKinds)

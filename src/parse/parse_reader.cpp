@@ -122,7 +122,7 @@ PendingSweep Reader::parse_sweep_body(bool argument) {
     take();
     s.step = take_value("a step");
   }
-  expect_end(s.step ? "end of line" : "'step S' or end of line");
+  if (argument) expect_end(s.step ? "end of line" : "'step S' or end of line");
   return s;
 }
 

@@ -25,7 +25,10 @@ constexpr auto kKeywords = std::to_array<std::string_view>({
     "resistor", "capacitor", "inductor", "voltage-source", "current-source", "switch", "vcvs", "vccs", "ccvs",
     "cccs", "rated", "pulse-rated", "initial", "closes", "opens", "on", "off", "rated-i2t", "gain", "sense", "dc",
     "cosine", "sine", "step", "at", "phase", "title", "ground", "window", "resolution", "watch", "sweep", "expect",
-    "golden-tolerance", "tau", "rth", "vth", "peak", "max", "min", "final", "amplitude", "energy", "i2t", "worst"});
+    "golden-tolerance", "tau", "rth", "vth", "peak", "max", "min", "final", "amplitude", "energy", "i2t", "worst",
+    // (v2)
+    "diode", "forward", "breakdown", "tolerance", "rated-dvdt", "rated-didt", "rated-rms", "frequency", "damping",
+    "share", "time-below", "dvdt", "didt", "rms", "power", "after"});
 
 bool is_keyword(std::string_view word) {
   return std::find(kKeywords.begin(), kKeywords.end(), word) != kKeywords.end();

@@ -96,7 +96,10 @@ std::string time_limit_fault(const RawValue& v, double t);
 // ---------------------------------------------------------------------------------------------
 // Element kinds and their attributes (tables in parse_elements.cpp)
 
-enum class Attr : std::uint8_t { rated, pulse_rated, initial, closes, opens, on, off, rated_i2t, gain, sense };
+enum class Attr : std::uint8_t {
+  rated, pulse_rated, initial, closes, opens, on, off, rated_i2t, gain, sense,
+  forward, breakdown, tolerance, rated_dvdt, rated_didt, rated_rms,  // (v2)
+};
 
 constexpr std::uint32_t bit(Attr a) { return 1u << static_cast<unsigned>(a); }
 
@@ -141,6 +144,7 @@ struct PendingSweep {
   RawValue from, to;
   std::optional<RawValue> step;
   SourceLoc loc;
+  bool joins_previous = false;  // (v2) a later target of a joint sweep line
 };
 
 // Where names are looked up: the parser's tables while a file is read, or a finished Circuit
@@ -215,7 +219,8 @@ class Reader {
   RawValue take_value(const Text& what);
   // `X.v`, `X.i`, `X.p`, `@n`, `@a - @b`.
   PendingObservable parse_observable();
-  // `TARGET FROM .. TO [step S]`, or `TARGET=FROM..TO [step S]` on the command line.
+  // `TARGET FROM .. TO [step S]`, or `TARGET=FROM..TO [step S]` on the command line (which must
+  // end there; a file's line may go on with `, TARGET ...`).
   PendingSweep parse_sweep_body(bool argument);
 
   std::string_view text_;
