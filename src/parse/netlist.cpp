@@ -69,8 +69,11 @@ Dimension Observable::dimension() const {
   switch (kind) {
     case ObservableKind::element_current: return Dimension::current;
     case ObservableKind::element_power: return Dimension::power;
-    default: return Dimension::voltage;
+    case ObservableKind::element_voltage:
+    case ObservableKind::node_voltage:
+    case ObservableKind::node_difference: return Dimension::voltage;
   }
+  return Dimension::voltage;  // not reached: every kind is named above
 }
 
 std::optional<ElementId> Circuit::find_element(std::string_view name) const {
