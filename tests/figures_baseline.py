@@ -61,6 +61,9 @@ INTENDED_CHANGES = {
         "issue 12 item 7: the documented resistance span is now 1e13 (refined solve), the message says so",
     # Second edition syntax: the lists in these two messages name the new kind and claims.
     ("netlists/bad/unknown_kind.nf", "*", "/error"): "spec v2: the list of kinds names 'diode'",
+    ("netlists/bad/attribute_not_taken.nf", "*", "/error"): "spec v2: the resistor's attribute list names rated-i2t, tolerance",
+    ("netlists/bad/repeated_attribute.nf", "*", "/error"):
+        "spec v2: the capacitor's attribute list names rated-dvdt, rated-rms, rated-i2t, tolerance",
     ("netlists/bad/unknown_claim.nf", "*", "/error"):
         "spec v2: the list of claim quantities names frequency, damping, share peak, time-below, dvdt, didt, rms, power",
     # issue 12 item 11: one verdict per file. The engine step every command runs (solve())
