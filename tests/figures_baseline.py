@@ -59,6 +59,13 @@ INTENDED_CHANGES = {
         "issue 12 messages: the caution that an ideal contact breaks an AC inductor current away from its zero",
     ("tests/degenerate/resistances_span_600_decades.nf", "*", "/error"):
         "issue 12 item 7: the documented resistance span is now 1e13 (refined solve), the message says so",
+    # Second edition syntax: the lists in these two messages name the new kind and claims.
+    ("netlists/bad/unknown_kind.nf", "*", "/error"): "spec v2: the list of kinds names 'diode'",
+    ("netlists/bad/attribute_not_taken.nf", "*", "/error"): "spec v2: the resistor's attribute list names rated-i2t, tolerance",
+    ("netlists/bad/repeated_attribute.nf", "*", "/error"):
+        "spec v2: the capacitor's attribute list names rated-dvdt, rated-rms, rated-i2t, tolerance",
+    ("netlists/bad/unknown_claim.nf", "*", "/error"):
+        "spec v2: the list of claim quantities names frequency, damping, share peak, time-below, dvdt, didt, rms, power",
     # issue 12 item 11: one verdict per file. The engine step every command runs (solve())
     # now refuses what `solve` refused in its report only: a figure beyond double precision,
     # a watched observable undefined in some segment; `equiv` and `worst` no longer answer.

@@ -427,7 +427,7 @@ TEST_CASE("an unknown kind is quoted whole and the kinds are listed", "[parse]")
   CHECK(errors[0].loc.col == 5);
   CHECK(errors[0].message ==
         "unknown element kind 'voltage-sourc'; the kinds are resistor, capacitor, inductor, voltage-source, "
-        "current-source, switch, vcvs, vccs, ccvs or cccs");
+        "current-source, switch, diode, vcvs, vccs, ccvs or cccs");
 }
 
 // (decision) "An element whose two nodes are the same node is an error."
@@ -475,15 +475,15 @@ TEST_CASE("an attribute the kind does not take is an error listing the kind's at
   auto errors = parse_errors(kBase + "R1: resistor a -> gnd, 1k, initial 5 V\n");
   REQUIRE(errors.size() == 1);
   CHECK(errors[0].loc.col == 28);
-  CHECK(errors[0].message == "a resistor takes no attribute 'initial'; its attributes are: rated P W, pulse-rated E J");
-  REQUIRE_PARSE_ERROR(kBase + "I1: current-source a -> gnd, dc 1 mA, rated 1 A\n", 2, 39, "a current-source takes no attributes, found 'rated'");
-  REQUIRE_PARSE_ERROR(kBase + "R1: resistor a -> gnd, 1k, 5 W\n", 2, 28, "expected an attribute of a resistor (rated P W, pulse-rated E J), found '5'");
+  CHECK(errors[0].message == "a resistor takes no attribute 'initial'; its attributes are: rated P W, pulse-rated E J, rated-i2t X A2s, tolerance P%");
+  REQUIRE_PARSE_ERROR(kBase + "I1: current-source a -> gnd, dc 1 mA, rated 1 A\n", 2, 39, "a current-source takes no attribute 'rated'; its attributes are: rated-i2t X A2s, tolerance P%");
+  REQUIRE_PARSE_ERROR(kBase + "R1: resistor a -> gnd, 1k, 5 W\n", 2, 28, "expected an attribute of a resistor (rated P W, pulse-rated E J, rated-i2t X A2s, tolerance P%), found '5'");
   REQUIRE_PARSE_ERROR(kBase + "R1: resistor a -> gnd, 1k,\n", 2, 27, "found end of line");
 }
 
 TEST_CASE("a repeated attribute is an error", "[parse]") {
   REQUIRE_PARSE_ERROR(kBase + "R1: resistor a -> gnd, 1k, rated 1 W, rated 2 W\n", 2, 39,
-                      "'rated' is given twice on R1; a resistor takes each of these once: rated P W, pulse-rated E J");
+                      "'rated' is given twice on R1; a resistor takes each of these once: rated P W, pulse-rated E J, rated-i2t X A2s, tolerance P%");
   REQUIRE_PARSE_ERROR(kBase + "K1: switch a -> gnd, closes at 0, on 1, on 2\n", 2, 41, "'on' is given twice on K1");
 }
 

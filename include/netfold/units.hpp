@@ -27,6 +27,8 @@ enum class Dimension {
   frequency,    ///< Hz
   angle,        ///< rad internally; `deg` and `°` accepted; a bare angle is in degrees
   percent,      ///< % (tolerances only)
+  voltage_rate, ///< (v2) V/s: `V/us`, `kV/s` ... (either part may carry a prefix)
+  current_rate, ///< (v2) A/s: `A/us`, `A/ms` ...
 };
 
 /// "a resistance", "a time", ... as used in messages.
@@ -46,7 +48,8 @@ struct UnitSuffix {
 };
 
 /// Interprets a unit suffix such as `nF`, `kΩ`, `kohm`, `ms`, `Vrms`, `deg`, `°`, `%`, `A2s`,
-/// `µ`, `u`, or `k`. Returns nothing when the text is not a unit.
+/// `µ`, `u`, `k`, or (v2) a rate `V/us`, `kV/s`, `A/ms`, whose exponent is the numerator's prefix
+/// less the denominator's, so that the value still converts in one rounding. Returns nothing when the text is not a unit.
 /// Case matters: `m` is milli, `M` is mega; `F` is farad, `f` femto.
 std::optional<UnitSuffix> parse_unit_suffix(std::string_view text);
 

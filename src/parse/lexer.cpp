@@ -31,13 +31,20 @@ std::size_t word_char_size(std::string_view s, std::size_t i) {
 }
 
 // Keywords with a hyphen; any other hyphen stands alone, so `@a-@b` is a difference.
-constexpr std::array<std::string_view, 5> kHyphenatedKeywords{
-    "voltage-source", "current-source", "pulse-rated", "rated-i2t", "golden-tolerance"};
+constexpr std::array<std::string_view, 9> kHyphenatedKeywords{
+    "voltage-source", "current-source", "pulse-rated", "rated-i2t", "golden-tolerance",
+    "rated-dvdt", "rated-didt", "rated-rms", "time-below"};
 
 bool is_hyphenated_keyword(std::string_view s) {
   for (auto k : kHyphenatedKeywords)
     if (k == s) return true;
   return false;
+}
+
+// Bytes of a rate's '/' at `i` followed by a word character (`V/us`), 0 if none: the one place
+// where '/' may appear outside strings and comments.
+std::size_t rate_slash_size(std::string_view s, std::size_t i) {
+  return i < s.size() && s[i] == '/' && word_char_size(s, i + 1) > 0 ? 1 : 0;
 }
 
 // A number starts here: a digit, or '.' followed by a digit.
@@ -251,12 +258,13 @@ bool Lexer::lex_line(std::string_view line, std::vector<Token>& tokens, std::opt
         }
       }
       number_size = j - i;
-      for (std::size_t w; (w = word_char_size(line, j)) > 0 || (j < n && line[j] == '%');) j += w > 0 ? w : 1;
+      for (std::size_t w; (w = word_char_size(line, j) + rate_slash_size(line, j)) > 0 || (j < n && line[j] == '%');)
+        j += w > 0 ? w : 1;
       i = j;
       kind = TokenKind::number;
     } else if (is_alpha(c) || unit_char_size(line, i) > 0) {
       std::size_t j = i;
-      for (std::size_t w; (w = word_char_size(line, j)) > 0;) j += w;
+      for (std::size_t w; (w = word_char_size(line, j) + rate_slash_size(line, j)) > 0;) j += w;
       if (j + 1 < n && line[j] == '-' && is_alpha(line[j + 1])) {
         std::size_t k = j + 1;
         while (k < n && is_alnum(line[k])) ++k;

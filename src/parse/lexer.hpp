@@ -1,7 +1,7 @@
 #pragma once
 /// \file lexer.hpp
 /// Internal: splits `.nf` text into statements and tokens. Tokens are views into the text, so
-/// lexing allocates nothing per token; the parser (src/parse.cpp) gives them meaning.
+/// lexing allocates nothing per token; the parser (src/parse/parse_*.cpp) gives them meaning.
 
 #include <cstdint>
 #include <optional>

@@ -8,6 +8,7 @@
 #include <limits>
 #include <string>
 #include <numbers>
+#include <utility>
 
 #include <fmt/format.h>
 
@@ -31,6 +32,8 @@ std::string_view dimension_noun(Dimension d) {
     case Dimension::frequency: return "a frequency";
     case Dimension::angle: return "an angle";
     case Dimension::percent: return "a percentage";
+    case Dimension::voltage_rate: return "a rate of change of voltage (V/s)";
+    case Dimension::current_rate: return "a rate of change of current (A/s)";
   }
   return "a value";
 }
@@ -51,6 +54,8 @@ std::string_view dimension_symbol(Dimension d) {
     case Dimension::frequency: return "Hz";
     case Dimension::angle: return "°";
     case Dimension::percent: return "%";
+    case Dimension::voltage_rate: return "V/s";
+    case Dimension::current_rate: return "A/s";
   }
   return "";
 }
@@ -165,10 +170,40 @@ Converted exact_decimal(std::string_view number, int shift) {
   return {negative ? -x : x, ValueFault::none};
 }
 
+// A prefix (possibly none) followed by exactly `unit`: its power of ten.
+std::optional<int> prefixed(std::string_view text, std::string_view unit) {
+  if (text.size() < unit.size() || text.substr(text.size() - unit.size()) != unit) return std::nullopt;
+  std::string_view prefix = text.substr(0, text.size() - unit.size());
+  if (prefix.empty()) return 0;
+  for (const auto& p : kPrefixes)
+    if (p.text == prefix) return p.exponent;
+  return std::nullopt;
+}
+
+// `V/us`, `kV/s`, `A/ms`: a voltage or current over a time, each with an optional prefix. The
+// prefixes' powers of ten are combined into one exponent, so that `5 V/us` converts in one
+// rounding to the double nearest 5·10⁶.
+std::optional<UnitSuffix> parse_rate(std::string_view text) {
+  const std::size_t slash = text.find('/');
+  const std::string_view top = text.substr(0, slash), bottom = text.substr(slash + 1);
+  const std::optional<int> per = prefixed(bottom, "s");
+  if (!per) return std::nullopt;
+  for (auto [unit, dim] : {std::pair{std::string_view("V"), Dimension::voltage_rate},
+                           std::pair{std::string_view("A"), Dimension::current_rate}}) {
+    if (const std::optional<int> e = prefixed(top, unit)) {
+      UnitSuffix s = make_suffix(*e - *per, nullptr);
+      s.dimension = dim;
+      return s;
+    }
+  }
+  return std::nullopt;
+}
+
 }  // namespace
 
 std::optional<UnitSuffix> parse_unit_suffix(std::string_view text) {
   if (text.empty()) return UnitSuffix{};
+  if (text.find('/') != std::string_view::npos) return parse_rate(text);
   if (const UnitEntry* u = find_unit(text)) return make_suffix(0, u);
   for (const auto& p : kPrefixes) {
     if (text.substr(0, p.text.size()) != p.text) continue;
