@@ -311,6 +311,22 @@ std::pair<Point, double> refine(const BoxEvaluator& ev, const std::vector<std::v
   return {best.first, sign * best.second};
 }
 
+// [metric][sample]: every metric at `options.samples` points drawn uniformly over the box, each
+// coordinate in axis order from one seeded sequence (the same N and seed, the same points).
+std::vector<std::vector<double>> sample_box(const BoxEvaluator& ev, const std::vector<std::vector<double>>& axes,
+                                            const WorstOptions& options) {
+  UniformSampler sampler(options.seed);
+  std::vector<std::vector<double>> samples(ev.metrics(), std::vector<double>(options.samples));
+  for (std::size_t i = 0; i < options.samples; ++i) {
+    Point x(axes.size());
+    for (std::size_t k = 0; k < axes.size(); ++k)
+      x[k] = axes[k].front() + sampler.next() * (axes[k].back() - axes[k].front());
+    auto v = ev.all_metrics(x);
+    for (std::size_t m = 0; m < v.size(); ++m) samples[m][i] = v[m];
+  }
+  return samples;
+}
+
 }  // namespace
 
 std::vector<CornerValue> toleranced_values(const Circuit& c, std::vector<std::pair<double, double>>* bounds) {
@@ -403,17 +419,7 @@ SweepResult search_box(const Circuit& c, const std::vector<Sweep>& targets, cons
       if (observables[m].text == sl.observable)
         result.shares.push_back({sl.observable, sl.level, weighted_share_above(values[m], weights, sl.level)});
 
-  if (options.samples > 0) {
-    UniformSampler sampler(options.seed);
-    std::vector<std::vector<double>> samples(ev.metrics(), std::vector<double>(options.samples));
-    for (std::size_t i = 0; i < options.samples; ++i) {
-      Point x(axes.size());
-      for (std::size_t k = 0; k < axes.size(); ++k) x[k] = axes[k].front() + sampler.next() * (axes[k].back() - axes[k].front());
-      auto v = ev.all_metrics(x);
-      for (std::size_t m = 0; m < v.size(); ++m) samples[m][i] = v[m];
-    }
-    sample_statistics(result, samples, ratings, options);
-  }
+  if (options.samples > 0) sample_statistics(result, sample_box(ev, axes, options), ratings, options);
   return result;
 }
 
