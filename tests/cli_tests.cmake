@@ -34,3 +34,12 @@ add_test(NAME cli_equiv_unknown_port_node COMMAND ${CMAKE_COMMAND} -DBIN=$<TARGE
          -DARGS=equiv\\;${PROJECT_SOURCE_DIR}/netlists/valve_coil.nf\\;--port\\;gnd,a -DEXPECT=2
          "-DMESSAGE=unknown node 'gnd'; this file's reference node is 'n' \\('ground n' at line 4\\)"
          -P ${PROJECT_SOURCE_DIR}/tests/expect_exit.cmake)
+
+# Issue 16: the peak's distribution with seeded samples, and the picture of a sweep.
+add_test(NAME cli_worst_samples COMMAND netfold worst ${PROJECT_SOURCE_DIR}/netlists/valve_coil.nf --samples 500 --seed 3 --json -)
+set_tests_properties(cli_worst_samples PROPERTIES PASS_REGULAR_EXPRESSION "\"p99_ci\".*\"samples\": 500.*\"seed\": 3")
+add_test(NAME cli_worst_svg COMMAND netfold worst ${PROJECT_SOURCE_DIR}/netlists/valve_coil.nf --svg -)
+set_tests_properties(cli_worst_svg PROPERTIES PASS_REGULAR_EXPRESSION "<svg.*coil_l.i peak.*supply.phase \\(°\\)")
+add_test(NAME cli_worst_seed_needs_samples COMMAND ${CMAKE_COMMAND} -DBIN=$<TARGET_FILE:netfold>
+         -DARGS=worst\\;${PROJECT_SOURCE_DIR}/netlists/valve_coil.nf\\;--seed\\;4 -DEXPECT=2
+         -P ${PROJECT_SOURCE_DIR}/tests/expect_exit.cmake)

@@ -127,6 +127,10 @@ INTENDED_CHANGES = {
         "solve rates the worst case over mains.phase (R_inrush energy 9.63 mJ -> 9.69 mJ, C1 290.1 V -> 292.2 V)",
     ("netlists/harmonic_supply.nf", "solve", "/json/ratings/*"):
         "solve rates the worst case over supply.phase (K1 and L_line 24.04 A -> 25.24 A, issue 12 item 4)",
+    # Issue 16: new fields of every sweep (spec v2), added beside the first-edition figures.
+    ("*.nf", "worst", "/json/sweeps/*/results/*/distribution"):
+        "new field: the peak's distribution over the sweep (p50, p90, p99)",
+    ("*.nf", "worst", "/json/sweeps/*/exceeded_share"): "new field: each rating's exceeded share of the sweep",
     # Issue 12 item 4: a phase sweep of a source with harmonics is a time shift.
     ("netlists/harmonic_supply.nf", "worst", "/json/*"):
         "supply.phase moves the 150 Hz and 250 Hz terms by 3x and 5x the angle (a time shift): worst "

@@ -32,6 +32,11 @@ struct PlotData {
   std::vector<PlotSeries> series;         ///< drawn in this order; panels in the order units first appear
   std::vector<double> events;             ///< switching instants (s), dashed vertical lines in every panel
   std::vector<std::string> event_labels;  ///< optional, same length as events (e.g. "K1 closes"), may be empty
+  /// Name of the horizontal axis ("t" for time; `worst --svg`: the sweep target).
+  std::string x_name = "t";
+  /// Unit of the horizontal axis: "s" (labelled in s, ms, µs or ns as fits), or any other
+  /// symbol drawn as given ("°", "V", "A").
+  std::string x_unit = "s";
 };
 
 /// Renders an SVG 1.1 document (UTF-8), 900 px wide, one panel per unit stacked vertically.

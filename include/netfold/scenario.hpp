@@ -19,8 +19,10 @@
 ///   // a.waveform(supply).sinusoids[0].phase == (30° − 90°) in rad: 325·sin(ωt + 30°)
 /// \endcode
 ///
-/// Shaped to grow: tolerances (a factor per element) and joint sweeps (several targets at once)
-/// are more entries of the same lists.
+/// Tolerances (v2) are entries of the same kind: an element's value and a source's factor.
+/// They change what the network stage reads (element values), so they are made once, by
+/// circuit_with_values(), on a copy of the circuit that is then solved under the rest of the
+/// scenario; apply_scenario() refuses a scenario whose values were not made that way.
 
 #include <optional>
 #include <utility>
@@ -48,14 +50,33 @@ struct FirstClosing {
   double time = 0.0;          ///< s
 };
 
+/// (v2) A resistor's, capacitor's or inductor's value set within its tolerance.
+struct ElementValue {
+  ElementId element = kNone;  ///< a resistor, capacitor or inductor
+  double value = 0.0;         ///< ohm, F or H
+};
+
+/// (v2) A factor on an independent source's whole waveform (its tolerance).
+struct SourceFactor {
+  ElementId source = kNone;  ///< an independent source
+  double factor = 1.0;       ///< dimensionless: every DC, sinusoid and step term is multiplied by it
+};
+
 /// Everything a run changes in the circuit as declared, in the user's terms. Each element
 /// appears at most once in each list (a later entry for the same element replaces an earlier).
 struct Scenario {
   std::vector<SourcePhase> source_phases;
   std::vector<ResidualState> residual_states;
   std::vector<FirstClosing> first_closings;
+  std::vector<ElementValue> element_values;  ///< (v2) made by circuit_with_values()
+  std::vector<SourceFactor> source_factors;  ///< (v2) made by circuit_with_values()
   /// True when the scenario changes nothing.
-  bool empty() const { return source_phases.empty() && residual_states.empty() && first_closings.empty(); }
+  bool empty() const {
+    return source_phases.empty() && residual_states.empty() && first_closings.empty() && element_values.empty() &&
+           source_factors.empty();
+  }
+  /// True when the scenario changes an element value or a source factor (a tolerance).
+  bool changes_values() const { return !element_values.empty() || !source_factors.empty(); }
 };
 
 /// Sets `sweep`'s target to `x` (in the sweep's SI unit: rad, V, A or s) in `scenario`.
@@ -91,6 +112,15 @@ class AppliedScenario {
   std::vector<std::pair<ElementId, std::vector<SwitchEvent>>> events_;
 };
 
+/// (v2) The circuit with the scenario's element values and source factors made: a copy, with
+/// every element, node, watch, sweep, claim and setting of `circuit` and the same source text,
+/// in which each listed element has its new value and each listed source's waveform (DC,
+/// sinusoid amplitudes, step levels) is multiplied by its factor. This is the one place a
+/// tolerance changes the circuit: solve, the ratings and the cross-check all read the copy.
+/// Throws InputError, at the element's line, for a value on an element that has none (a
+/// switch, a source) or a factor on an element that is not an independent source.
+Circuit circuit_with_values(const Circuit& circuit, const Scenario& scenario);
+
 /// Applies `scenario` to `circuit`, once.
 ///
 /// A phase p of source S (spec v2, "Sweep arguments are in the user's terms") is a shift of
@@ -100,7 +130,9 @@ class AppliedScenario {
 ///
 /// Throws InputError, at the element's line, for a target the element cannot take (a phase
 /// of a source without a sinusoid, the state of an element that stores none, the closing of
-/// a switch that never closes).
+/// a switch that never closes). Element values and source factors are not applied here (the
+/// network stage reads values from the circuit): `circuit` must be circuit_with_values() of
+/// the declared circuit, and an element value that `circuit` does not hold is a logic_error.
 AppliedScenario apply_scenario(const Circuit& circuit, const Scenario& scenario);
 
 /// The value of the `phase` attribute of source `id`'s first sinusoid, as written (rad): a

@@ -8,16 +8,42 @@
 /// enough to bracket every local maximum of the peak, then golden-section refinement of each
 /// bracket to 1e-9 of the range; within each response, the peak in time is found by
 /// bracketing the derivative (closed_form.hpp, find_extremes).
+///
+/// (v2) A sweep line with several targets, or any sweep in a circuit with tolerances, is a
+/// search over a box (the targets' ranges times every toleranced value's bounds): a grid, then
+/// Nelder–Mead refinement inside the box from the best grid points that are local maxima
+/// (docs/worst-case.md says what this guarantees). The peak's distribution over the range
+/// (and box), each uniform, is given for every sweep: from the grid by default, from seeded
+/// Monte Carlo samples with WorstOptions::samples.
 
 #include <cstdint>
 #include <optional>
 #include <string>
 #include <vector>
 
+#include "netfold/distribution.hpp"
 #include "netfold/ratings.hpp"
 #include "netfold/solve.hpp"
 
 namespace netfold {
+
+/// The peak's distribution over a sweep's range (and tolerance box), each uniform.
+struct PeakDistribution {
+  double p50 = 0.0;  ///< median
+  double p90 = 0.0;  ///< 90th percentile
+  double p99 = 0.0;  ///< 99th percentile
+  /// Monte Carlo only: a 95 % distribution-free interval for p99 (order statistics, Conover
+  /// §3.2); a bound is missing when the sample count is too small for it.
+  std::optional<double> p99_lo, p99_hi;
+};
+
+/// One toleranced value at a point of the search: an element's value or a source's factor.
+struct CornerValue {
+  ElementId element = kNone;
+  std::string name;        ///< the element's name
+  double value = 0.0;      ///< ohm, F or H; a source's factor (dimensionless)
+  bool is_factor = false;  ///< true for a source
+};
 
 /// The worst (and best) value of one quantity over one sweep.
 struct SweepExtreme {
@@ -30,16 +56,42 @@ struct SweepExtreme {
   double best = 0.0;       ///< smallest value over the sweep
   double best_at = 0.0;
   std::optional<double> steady_peak;  ///< peak of the steady state (observables), when it exists
+  /// (v2) Every target's argument at the worst (worst_at is the first) and at the best.
+  std::vector<double> worst_point, best_point;
+  /// (v2) With tolerances: each toleranced value at the worst, and at the best.
+  std::vector<CornerValue> corner, best_corner;
+  /// (v2) Observables: the peak's distribution over the sweep.
+  PeakDistribution distribution;
+};
+
+/// (v2) The share of a sweep in which an observable's peak exceeds a level (a `share` claim).
+struct LevelShare {
+  std::string observable;  ///< observable text
+  double level = 0.0;      ///< SI
+  double share = 0.0;      ///< fraction of the range (and box), 0..1
 };
 
 /// One sweep's results.
 struct SweepResult {
-  Sweep sweep;
-  std::vector<double> grid;                        ///< the search grid of the argument
+  Sweep sweep;                                     ///< the first target (the only one in the first edition)
+  std::vector<Sweep> targets;                      ///< (v2) every target of the sweep line; empty for a search of the tolerance box alone
+  std::vector<CornerValue> tolerances;             ///< (v2) the toleranced values searched (at their nominal values)
+  std::vector<std::pair<double, double>> tolerance_bounds;  ///< (v2) each toleranced value's range
+  /// The grid of the first target (the profile drawn and written to CSV: the argument).
+  std::vector<double> grid;
+  std::size_t grid_points = 0;                     ///< (v2) points of the whole search grid
   std::vector<SweepExtreme> observables;           ///< one per watched observable
-  std::vector<std::vector<double>> grid_peaks;     ///< [observable][grid point]: peak |y|
+  /// [observable][grid point]: peak |y| along `grid`; for a joint or toleranced search, the
+  /// profile through the worst point of each observable (the other arguments at their worst).
+  std::vector<std::vector<double>> grid_peaks;
   std::vector<SweepExtreme> ratings;               ///< one per rating of the circuit
   std::vector<std::size_t> rating_index;           ///< index into check_ratings order
+  std::vector<double> exceeded_share;              ///< (v2) per rating: the share in which it is exceeded
+  std::vector<LevelShare> shares;                  ///< (v2) the shares asked for by WorstOptions::share_levels
+  std::size_t samples = 0;                         ///< (v2) Monte Carlo sample count (0: from the grid)
+  std::uint64_t seed = 0;                          ///< (v2) Monte Carlo seed
+  /// True for a joint or toleranced search (the box search), false for the one-target search.
+  bool box = false;
 };
 
 /// Everything `worst` reports.
@@ -52,12 +104,40 @@ struct WorstReport {
 
 /// Default number of grid intervals of a sweep without `step`.
 inline constexpr int kDefaultSweepIntervals = 360;
+/// (v2) Default grid intervals of each target of a joint sweep without `step`.
+inline constexpr int kDefaultJointIntervals = 36;
+/// (v2) Grid intervals of each toleranced value (low, nominal-side points, high).
+inline constexpr int kToleranceIntervals = 4;
 
 /// What a search covers.
 enum class WorstScope : std::uint8_t {
   everything,    ///< every watched observable and every rating
   ratings_only,  ///< the ratings alone (what `solve` and `check` judge)
 };
+
+/// (v2) A level whose exceeded share is wanted for every sweep (a `share peak OBS > LEVEL` claim).
+struct ShareLevel {
+  std::string observable;  ///< observable text, as in Observable::text
+  double level = 0.0;      ///< SI
+};
+
+/// (v2) What a search covers and how its distribution is estimated.
+struct WorstOptions {
+  WorstScope scope = WorstScope::everything;
+  /// 0: the distribution from the search grid; N > 0: from N Monte Carlo samples.
+  std::size_t samples = 0;
+  std::uint64_t seed = kDefaultSeed;
+  std::vector<ShareLevel> share_levels;
+};
+
+/// The sweep lines of `sweeps`: consecutive targets with the same Sweep::line form one line.
+std::vector<std::vector<Sweep>> sweep_lines(const std::vector<Sweep>& sweeps);
+
+/// (v2) True when some element of the circuit declares a tolerance with a non-empty range.
+bool has_tolerances(const Circuit& circuit);
+
+/// Searches every sweep line (with tolerances and no sweep line, the tolerance box alone).
+WorstReport find_worst_case(const Circuit& circuit, const std::vector<Sweep>& sweeps, const WorstOptions& options);
 
 /// Searches every sweep. Throws InputError for a sweep range the circuit cannot take (a
 /// `closes` time that would pass the switch's neighbouring events or the end of a declared
@@ -82,5 +162,9 @@ std::vector<double> sweep_grid(const Sweep& sweep, const Solution& nominal);
 void write_worst_text(std::ostream& out, const WorstReport& report, const Solution& nominal);
 std::string worst_json(const WorstReport& report, const Circuit& circuit);
 std::string worst_csv(const WorstReport& report);
+/// (v2) The SVG of `worst --svg`: per sweep, the peak of every watched quantity against the
+/// first target's argument (a joint or toleranced sweep: with the other values at the worst
+/// point of that quantity), its steady-state peak as a dashed line, worst and best marked.
+std::string worst_svg(const WorstReport& report, const Circuit& circuit);
 
 }  // namespace netfold

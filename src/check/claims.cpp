@@ -112,12 +112,12 @@ class ClaimEvaluator {
         }
         case ClaimQuantity::i2t: return {element_i2t(s_, claim.element), {}, {}};
         case ClaimQuantity::worst_peak: return worst_peak(claim);
+        case ClaimQuantity::share_peak: return share_peak(claim);
         case ClaimQuantity::power: return {element_mean_power(s_, claim.element), {}, {}};
         // Read by the parser only once the engine computes them (several storage elements,
         // distributions, the v2 stress figures).
         case ClaimQuantity::frequency:
         case ClaimQuantity::damping:
-        case ClaimQuantity::share_peak:
         case ClaimQuantity::time_below:
         case ClaimQuantity::dvdt:
         case ClaimQuantity::didt:
@@ -260,8 +260,10 @@ class ClaimEvaluator {
     worst_done_ = true;
     // The search covers the solution's observables; claimed ones outside that list join it.
     std::vector<Observable> extra;
+    WorstOptions options;
     for (const auto& cl : c_.claims()) {
-      if (cl.quantity != ClaimQuantity::worst_peak) continue;
+      if (cl.quantity == ClaimQuantity::share_peak) options.share_levels.push_back({cl.observable.text, cl.level});
+      if (cl.quantity != ClaimQuantity::worst_peak && cl.quantity != ClaimQuantity::share_peak) continue;
       auto named = [&](const Observable& o) { return o.text == cl.observable.text; };
       if (std::none_of(s_.observables().begin(), s_.observables().end(), named) &&
           std::none_of(extra.begin(), extra.end(), named))
@@ -269,11 +271,11 @@ class ClaimEvaluator {
     }
     try {
       if (extra.empty()) {
-        worst_ = find_worst_case(c_, c_.sweeps());
+        worst_ = find_worst_case(c_, c_.sweeps(), options);
       } else {
         // The report keeps no reference to the circuit it searched, so a local copy is enough.
         Circuit widened = with_watches(c_, s_.observables(), extra);
-        worst_ = find_worst_case(widened, widened.sweeps());
+        worst_ = find_worst_case(widened, widened.sweeps(), options);
       }
     } catch (const Error& e) {
       worst_error_ = error_text(e);
@@ -286,7 +288,7 @@ class ClaimEvaluator {
   std::vector<ClaimResult> ratings() {
     std::vector<RatingCheck> checks;
     try {
-      if (c_.sweeps().empty()) checks = check_ratings(s_);
+      if (c_.sweeps().empty() && !has_tolerances(c_)) checks = check_ratings(s_);
       else if (worst_done_ && worst_) checks = worst_->ratings;
       else checks = worst_case_ratings(c_, c_.sweeps());
     } catch (const Error& e) {
@@ -326,7 +328,7 @@ class ClaimEvaluator {
 
  private:
   Evaluation worst_peak(const Claim& claim) {
-    if (c_.sweeps().empty())
+    if (c_.sweeps().empty() && !has_tolerances(c_))
       return undefined(fmt::format("worst peak {} needs a sweep: declare one with 'sweep TARGET FROM .. TO' "
                                    "(a source's phase, the storage element's initial state or a switch's closing time)",
                                    claim.observable.text));
@@ -345,6 +347,30 @@ class ClaimEvaluator {
       }
     if (!best) return undefined(fmt::format("the worst-case search did not cover {}", claim.observable.text));
     return {*best, {}, where};
+  }
+
+  // The share (in %) of each sweep's range (and tolerance box) in which the peak exceeds the
+  // level; the claim speaks of the largest over the sweeps (spec v2).
+  Evaluation share_peak(const Claim& claim) {
+    if (c_.sweeps().empty() && !has_tolerances(c_))
+      return undefined(fmt::format("share peak {} needs a sweep or a tolerance: declare one with 'sweep TARGET FROM .. "
+                                   "TO' or 'tolerance P%'",
+                                   claim.observable.text));
+    if (!worst_done_) search_worst();
+    if (!worst_) return undefined(fmt::format("the worst-case search failed: {}", worst_error_));
+    std::optional<double> largest;
+    std::string where;
+    for (const auto& sweep : worst_->sweeps)
+      for (const auto& ls : sweep.shares) {
+        if (ls.observable != claim.observable.text || ls.level != claim.level) continue;
+        if (!largest || 100.0 * ls.share > *largest) {
+          largest = 100.0 * ls.share;
+          where = fmt::format("over sweep {}{}", sweep.sweep.text,
+                              sweep.samples ? fmt::format(", {} samples", sweep.samples) : std::string());
+        }
+      }
+    if (!largest) return undefined(fmt::format("the worst-case search did not cover {}", claim.observable.text));
+    return {*largest, {}, where};
   }
 };
 

@@ -4,6 +4,7 @@
 #include <cctype>
 #include <cmath>
 #include <numbers>
+#include <stdexcept>
 
 #include <fmt/format.h>
 
@@ -96,7 +97,44 @@ double AppliedScenario::time_shift(ElementId id) const {
   return 0.0;
 }
 
+Circuit circuit_with_values(const Circuit& c, const Scenario& scenario) {
+  std::vector<Element> elements = c.elements();
+  for (const ElementValue& ev : scenario.element_values) {
+    Element& e = elements.at(ev.element);
+    if (e.kind != ElementKind::resistor && !is_storage(e.kind))
+      fail(c, e.loc, fmt::format("'{}' is not a resistor, capacitor or inductor: it has no value to set", e.name));
+    e.value = ev.value;
+  }
+  for (const SourceFactor& sf : scenario.source_factors) {
+    Element& e = elements.at(sf.source);
+    if (!is_independent_source(e.kind))
+      fail(c, e.loc, fmt::format("'{}' is not an independent source: it has no waveform to scale", e.name));
+    e.waveform.dc *= sf.factor;
+    for (Sinusoid& s : e.waveform.sinusoids) s.amplitude *= sf.factor;
+    for (Step& st : e.waveform.steps) st.level *= sf.factor;
+  }
+  CircuitBuilder b(c.source_ptr());
+  for (const auto& n : c.nodes()) b.node(n);
+  b.set_ground(c.nodes().at(c.ground()), c.ground_loc());
+  for (auto& e : elements) b.add_element(std::move(e));
+  b.set_title(c.title());
+  for (const auto& o : c.watches()) b.add_watch(o);
+  for (std::size_t k = 0; k < c.sweeps().size(); ++k)
+    b.add_sweep(c.sweeps()[k], k > 0 && c.sweeps()[k].line == c.sweeps()[k - 1].line);
+  for (const auto& cl : c.claims()) b.add_claim(cl);
+  if (c.window()) b.set_window(*c.window());
+  if (c.resolution()) b.set_resolution(*c.resolution(), c.resolution_loc());
+  if (c.golden_tolerance()) b.set_golden_tolerance(*c.golden_tolerance());
+  return std::move(b).build();
+}
+
 AppliedScenario apply_scenario(const Circuit& c, const Scenario& scenario) {
+  // Values are made by circuit_with_values (the network stage reads them from the circuit);
+  // a scenario whose values the circuit does not hold was solved on the declared circuit.
+  for (const ElementValue& ev : scenario.element_values)
+    if (c.element(ev.element).value != ev.value)
+      throw std::logic_error(fmt::format("apply_scenario: {}'s value was not set by circuit_with_values",
+                                         c.element(ev.element).name));
   AppliedScenario a;
   a.circuit_ = &c;
   a.scenario_ = scenario;

@@ -214,7 +214,8 @@ void find_time_range(const PlotData& data, Layout& L) {
   }
   L.t0 = lo;
   L.t1 = hi;
-  L.time_unit = choose_time_unit(hi - lo);
+  // A horizontal axis other than time (worst --svg: a sweep argument) is drawn in its own unit.
+  L.time_unit = data.x_unit == "s" ? choose_time_unit(hi - lo) : TimeUnit{1.0, data.x_unit};
   L.x = choose_ticks(lo / L.time_unit.scale, hi / L.time_unit.scale, false);
 }
 
@@ -446,8 +447,8 @@ std::string render_svg_plot(const PlotData& data) {
     put(out, "<text class=\"no-data\" x=\"{:.2f}\" y=\"{:.2f}\" text-anchor=\"middle\">no waveforms to plot</text>\n",
         kWidth / 2.0, L.height - 20.0);
   } else {
-    put(out, "<text class=\"axis-label\" x=\"{:.2f}\" y=\"{:.2f}\" text-anchor=\"middle\">t ({})</text>\n",
-        (kPlotLeft + kPlotRight) / 2.0, L.height - 8.0, L.time_unit.name);
+    put(out, "<text class=\"axis-label\" x=\"{:.2f}\" y=\"{:.2f}\" text-anchor=\"middle\">{} ({})</text>\n",
+        (kPlotLeft + kPlotRight) / 2.0, L.height - 8.0, escape_xml(data.x_name), escape_xml(L.time_unit.name));
   }
   put(out, "</svg>\n");
   return out;

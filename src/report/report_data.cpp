@@ -60,7 +60,7 @@ SolveReport build_solve_report(const Solution& solution) {
     t.i2t = element_i2t(solution, id);
     r.totals.push_back(t);
   }
-  r.ratings = solution.circuit().sweeps().empty() ? check_ratings(solution)
+  r.ratings = solution.circuit().sweeps().empty() && !has_tolerances(solution.circuit()) ? check_ratings(solution)
                                                   : worst_case_ratings(solution.circuit(), solution.circuit().sweeps());
   r.hazardous = is_hazardous(solution, r.figures);
   if (r.hazardous) r.warnings.push_back(kHazardCaution);

@@ -4,22 +4,29 @@
 #include <cmath>
 #include <numbers>
 
+#include <fmt/ranges.h>
+
 #include <fmt/format.h>
 #include <fmt/ostream.h>
 #include <nlohmann/json.hpp>
 
-#include "report/json_fields.hpp"
 #include "netfold/units.hpp"
+#include "search.hpp"
 
 namespace netfold {
 
-namespace {
-
-constexpr double kRadToDeg = 180.0 / std::numbers::pi;
-
-[[noreturn]] void fail(const Circuit& c, SourceLoc loc, std::string message) {
+namespace detail {
+void worst_fail(const Circuit& c, SourceLoc loc, std::string message) {
   throw InputError(c.diagnostic(loc, std::move(message)));
 }
+}  // namespace detail
+
+namespace {
+
+using detail::worst_fail;
+constexpr double kRadToDeg = 180.0 / std::numbers::pi;
+
+[[noreturn]] void fail(const Circuit& c, SourceLoc loc, std::string message) { worst_fail(c, loc, std::move(message)); }
 
 // The time of a switch's first `closes` event and its neighbours, which bound a closes sweep.
 struct ClosesSlot {
@@ -40,11 +47,13 @@ ClosesSlot closes_slot(const Element& e) {
   return slot;
 }
 
+}  // namespace
+
 // A sweep range the circuit cannot take is refused at the sweep's line. A closing time at or
 // past the end of a declared window would leave the switch open for the whole window at part
 // of the range, and that part would be scored as "never closes": refused rather than scored.
 // (A default window is lengthened instead; see search_sweep.)
-void validate_sweep(const Circuit& c, const Sweep& sw, const Solution& nominal) {
+void detail::validate_sweep(const Circuit& c, const Sweep& sw, const Solution& nominal) {
   if (!(sw.from < sw.to)) fail(c, sw.loc, fmt::format("the sweep of {} needs FROM < TO", sw.text));
   if (sw.step && !(*sw.step > 0.0)) fail(c, sw.loc, fmt::format("the sweep of {} needs a positive step", sw.text));
   if (sw.target != SweepTarget::switch_closes) return;
@@ -64,6 +73,20 @@ void validate_sweep(const Circuit& c, const Sweep& sw, const Solution& nominal) 
                      c.element(sw.element).name, format_si(sw.to, "s"), format_si(w.from, "s"), format_si(w.to, "s"),
                      format_si(w.to, "s"), c.element(sw.element).name, format_si(w.to, "s")));
 }
+
+Window detail::search_window(const Circuit& c, const std::vector<Sweep>& targets, const Solution& nominal) {
+  Window window = nominal.window();
+  if (!nominal.window_is_default()) return window;
+  double later = 0.0;
+  for (const Sweep& sw : targets)
+    if (sw.target == SweepTarget::switch_closes)
+      later = std::max(later, sw.to - closes_slot(c.element(sw.element)).nominal);
+  window.to += later;
+  return window;
+}
+
+
+namespace {
 
 SolveOptions options_for(const Sweep& sw, const Window& window, double x) {
   SolveOptions o;
@@ -87,30 +110,6 @@ auto at_argument(const Circuit& c, const Sweep& sw, double x, F&& f) -> decltype
          fmt::format("the sweep of {} reaches {}, where the circuit cannot be solved: {}{}; narrow the range",
                      sw.text, sweep_argument_text(c, sw, x), original, line));
   }
-}
-
-// Golden-section search for a local maximum of f in [a, b] (J. Kiefer, 1953), to `tol`.
-template <typename F>
-std::pair<double, double> golden_maximum(F&& f, double a, double b, double tol) {
-  const double inv_phi = (std::sqrt(5.0) - 1.0) / 2.0;
-  double c = b - inv_phi * (b - a), d = a + inv_phi * (b - a);
-  double fc = f(c), fd = f(d);
-  while (b - a > tol) {
-    if (fc >= fd) {
-      b = d;
-      d = c;
-      fd = fc;
-      c = b - inv_phi * (b - a);
-      fc = f(c);
-    } else {
-      a = c;
-      c = d;
-      fc = fd;
-      d = a + inv_phi * (b - a);
-      fd = f(d);
-    }
-  }
-  return fc >= fd ? std::make_pair(c, fc) : std::make_pair(d, fd);
 }
 
 }  // namespace
@@ -198,14 +197,14 @@ class SweepSearch {
     for (std::size_t k = 0; k < n; ++k) {
       const double a = grid[k == 0 ? 0 : k - 1], b = grid[k + 1 == n ? k : k + 1];
       if ((k == 0 || v[k] >= v[k - 1]) && (k + 1 == n || v[k] >= v[k + 1])) {
-        auto [x, fx] = golden_maximum([&](double xx) { return value(xx, m); }, a, b, tol);
+        auto [x, fx] = detail::golden_maximum([&](double xx) { return value(xx, m); }, a, b, tol);
         if (fx > ex.worst) {
           ex.worst = fx;
           ex.worst_at = x;
         }
       }
       if ((k == 0 || v[k] <= v[k - 1]) && (k + 1 == n || v[k] <= v[k + 1])) {
-        auto [x, fx] = golden_maximum([&](double xx) { return -value(xx, m); }, a, b, tol);
+        auto [x, fx] = detail::golden_maximum([&](double xx) { return -value(xx, m); }, a, b, tol);
         if (-fx < ex.best) {
           ex.best = -fx;
           ex.best_at = x;
@@ -224,20 +223,40 @@ class SweepSearch {
   std::shared_ptr<NetworkCache> cache_;
 };
 
+// The share of the range in which metric m exceeds `level`, from the crossings of the curve:
+// each grid interval whose ends lie on both sides of the level has its crossing refined by
+// bisection on the response itself (to 1e-9 of the interval), so the share is exact up to
+// excursions that begin and end between two grid points.
+double refined_share_above(const SweepSearch& search, const std::vector<double>& grid, const std::vector<double>& v,
+                           std::size_t m, double level) {
+  double above = 0.0;
+  for (std::size_t k = 0; k + 1 < grid.size(); ++k) {
+    const bool a = v[k] > level, b = v[k + 1] > level;
+    if (a && b) above += grid[k + 1] - grid[k];
+    if (a == b) continue;
+    double lo = grid[k], hi = grid[k + 1];  // lo on the side of v[k]
+    for (int it = 0; it < 30; ++it) {
+      const double mid = 0.5 * (lo + hi);
+      ((search.value(mid, m) > level) == a ? lo : hi) = mid;
+    }
+    above += a ? lo - grid[k] : grid[k + 1] - hi;
+  }
+  return std::clamp(above / (grid.back() - grid.front()), 0.0, 1.0);
+}
+
 SweepResult search_sweep(const Circuit& c, const Sweep& sw, const Solution& nominal,
                          const std::vector<Observable>& observables, const std::vector<RatingCheck>& ratings,
-                         const std::shared_ptr<NetworkCache>& cache) {
-  validate_sweep(c, sw, nominal);
+                         const std::shared_ptr<NetworkCache>& cache, const WorstOptions& options) {
+  detail::validate_sweep(c, sw, nominal);
   SweepResult result;
   result.sweep = sw;
-  Window window = nominal.window();
-  if (sw.target == SweepTarget::switch_closes && nominal.window_is_default())
-    window.to += std::max(0.0, sw.to - closes_slot(c.element(sw.element)).nominal);
-  SweepSearch search(c, sw, window, observables, ratings, cache);
+  result.targets = {sw};
+  SweepSearch search(c, sw, detail::search_window(c, {sw}, nominal), observables, ratings, cache);
   const std::size_t n_obs = observables.size();
 
   result.grid = sweep_grid(sw, nominal);
   const std::size_t n_grid = result.grid.size();
+  result.grid_points = n_grid;
   std::vector<std::vector<double>> values(search.metrics(), std::vector<double>(n_grid));
   for (std::size_t k = 0; k < n_grid; ++k) {
     Solution s = search.solve_at(result.grid[k]);
@@ -245,6 +264,8 @@ SweepResult search_sweep(const Circuit& c, const Sweep& sw, const Solution& nomi
   }
   for (std::size_t m = 0; m < search.metrics(); ++m) {
     SweepExtreme ex = search.extreme(result.grid, values[m], m);
+    ex.worst_point = {ex.worst_at};
+    ex.best_point = {ex.best_at};
     Solution at_worst = search.solve_at(ex.worst_at);
     if (m < n_obs) {
       const Observable& obs = observables[m];
@@ -252,6 +273,9 @@ SweepResult search_sweep(const Circuit& c, const Sweep& sw, const Solution& nomi
       ex.unit = dimension_symbol(obs.dimension());
       ex.t_peak = search.metric(at_worst, ex.worst_at, m).time;
       if (obs.kind != ObservableKind::element_power) ex.steady_peak = compute_figures(at_worst, obs).steady_peak;
+      ex.distribution.p50 = curve_percentile(result.grid, values[m], 0.50);
+      ex.distribution.p90 = curve_percentile(result.grid, values[m], 0.90);
+      ex.distribution.p99 = curve_percentile(result.grid, values[m], 0.99);
       result.observables.push_back(ex);
       result.grid_peaks.push_back(values[m]);
     } else {
@@ -261,22 +285,75 @@ SweepResult search_sweep(const Circuit& c, const Sweep& sw, const Solution& nomi
       ex.where = stress_location(at_worst, r.kind, rating_stress(at_worst, r.element, r.kind));
       result.ratings.push_back(ex);
       result.rating_index.push_back(m - n_obs);
+      result.exceeded_share.push_back(n_grid < 2 ? (ex.worst > r.rated ? 1.0 : 0.0)
+                                                 : refined_share_above(search, result.grid, values[m], m, r.rated));
     }
+  }
+  for (const ShareLevel& sl : options.share_levels)
+    for (std::size_t m = 0; m < n_obs; ++m)
+      if (observables[m].text == sl.observable)
+        result.shares.push_back({sl.observable, sl.level, refined_share_above(search, result.grid, values[m], m, sl.level)});
+  if (options.samples > 0) {
+    UniformSampler sampler(options.seed);
+    std::vector<std::vector<double>> samples(search.metrics(), std::vector<double>(options.samples));
+    for (std::size_t i = 0; i < options.samples; ++i) {
+      const double x = sw.from + sampler.next() * (sw.to - sw.from);
+      Solution s = search.solve_at(x);
+      for (std::size_t m = 0; m < search.metrics(); ++m) samples[m][i] = search.metric(s, x, m).value;
+    }
+    detail::sample_statistics(result, samples, ratings, options);
   }
   return result;
 }
 
+std::string point_argument_text(const Circuit& c, const SweepResult& res, const SweepExtreme& ex) {
+  std::vector<std::string> parts;
+  for (std::size_t k = 0; k < res.targets.size() && k < ex.worst_point.size(); ++k)
+    parts.push_back(fmt::format("{} = {}", res.targets[k].text, sweep_argument_text(c, res.targets[k], ex.worst_point[k])));
+  for (const CornerValue& cv : ex.corner) {
+    const ElementKind kind = c.element(cv.element).kind;
+    const char* unit = kind == ElementKind::capacitor ? "F" : kind == ElementKind::inductor ? "H" : "Ω";
+    parts.push_back(cv.is_factor ? fmt::format("{} × {:.4g}", cv.name, cv.value)
+                                 : fmt::format("{} = {}", cv.name, format_si(cv.value, unit, 5)));
+  }
+  return fmt::format("{}", fmt::join(parts, ", "));
+}
+
 }  // namespace
 
+std::vector<std::vector<Sweep>> sweep_lines(const std::vector<Sweep>& sweeps) {
+  std::vector<std::vector<Sweep>> lines;
+  for (std::size_t k = 0; k < sweeps.size(); ++k) {
+    if (k == 0 || sweeps[k].line != sweeps[k - 1].line) lines.emplace_back();
+    lines.back().push_back(sweeps[k]);
+  }
+  return lines;
+}
+
+bool has_tolerances(const Circuit& c) { return !detail::toleranced_values(c, nullptr).empty(); }
+
 WorstReport find_worst_case(const Circuit& c, const std::vector<Sweep>& sweeps, WorstScope scope) {
+  WorstOptions o;
+  o.scope = scope;
+  return find_worst_case(c, sweeps, o);
+}
+
+WorstReport find_worst_case(const Circuit& c, const std::vector<Sweep>& sweeps, const WorstOptions& options) {
   auto cache = std::make_shared<NetworkCache>(c);
   Solution nominal = solve(c, {}, cache);
   WorstReport report;
   report.ratings = check_ratings(nominal);
   const std::vector<Observable> none;
-  const auto& observables = scope == WorstScope::everything ? nominal.observables() : none;
-  for (const Sweep& sw : sweeps)
-    report.sweeps.push_back(search_sweep(c, sw, nominal, observables, report.ratings, cache));
+  const auto& observables = options.scope == WorstScope::everything ? nominal.observables() : none;
+  const bool tolerances = has_tolerances(c);
+  auto lines = sweep_lines(sweeps);
+  // With tolerances and no sweep, the tolerance box alone is searched (spec v2: every
+  // worst-case search spans the toleranced values).
+  if (lines.empty() && tolerances) lines.emplace_back();
+  for (const auto& line : lines)
+    report.sweeps.push_back(line.size() == 1 && !tolerances
+                                ? search_sweep(c, line.front(), nominal, observables, report.ratings, cache, options)
+                                : detail::search_box(c, line, nominal, observables, report.ratings, cache, options));
 
   // Ratings: the worst over every sweep is what is rated.
   for (const auto& res : report.sweeps)
@@ -290,11 +367,10 @@ WorstReport find_worst_case(const Circuit& c, const std::vector<Sweep>& sweeps, 
       // A figure the sweep does not change (a steady-state power) has no worst argument to name.
       const bool flat = ex.best >= ex.worst - 1e-9 * std::fabs(ex.worst);
       r.worst_argument = flat ? fmt::format("the same at every {}", res.sweep.text)
-                              : fmt::format("worst case at {} = {}", res.sweep.text,
-                                            sweep_argument_text(c, res.sweep, ex.worst_at));
+                              : fmt::format("worst case at {}", point_argument_text(c, res, ex));
       r.worst_target = res.sweep.text;
-      r.worst_at = ex.worst_at;
-      r.worst_at_unit = sweep_argument_unit(c, res.sweep);
+      r.worst_at = res.targets.empty() ? std::nullopt : std::optional<double>(ex.worst_at);
+      r.worst_at_unit = res.targets.empty() ? "" : sweep_argument_unit(c, res.sweep);
     }
   for (auto& r : report.ratings) judge_rating(r, r.actual);
   return report;
@@ -303,81 +379,8 @@ WorstReport find_worst_case(const Circuit& c, const std::vector<Sweep>& sweeps, 
 std::vector<RatingCheck> worst_case_ratings(const Circuit& c, const std::vector<Sweep>& sweeps) {
   bool rated = false;
   for (const auto& e : c.elements()) rated |= !e.ratings.empty();
-  if (sweeps.empty() || !rated) return check_ratings(solve(c));
+  if ((sweeps.empty() && !has_tolerances(c)) || !rated) return check_ratings(solve(c));
   return find_worst_case(c, sweeps, WorstScope::ratings_only).ratings;
-}
-
-void write_worst_text(std::ostream& out, const WorstReport& report, const Solution& nominal) {
-  const Circuit& c = nominal.circuit();
-  fmt::print(out, "netfold worst: {}{}\n", c.title().empty() ? c.source().path() : c.title(),
-             c.title().empty() ? "" : fmt::format("  ({})", c.source().path()));
-  if (report.sweeps.empty())
-    fmt::print(out, "no sweep declared: add 'sweep TARGET FROM .. TO' to the file or give --sweep TARGET=FROM..TO\n");
-  for (const auto& res : report.sweeps) {
-    const Sweep& sw = res.sweep;
-    fmt::print(out, "\nsweep {} from {} to {} ({} grid points, worst and best refined to 1e-9 of the range)\n",
-               sw.text, sweep_argument_text(c, sw, sw.from), sweep_argument_text(c, sw, sw.to), res.grid.size());
-    fmt::print(out, "  {:<16} {:>12} {:>12} {:>11}   {:>12} {:>12}   {:>12}\n", "observable", "worst peak", "at",
-               "t_peak", "best peak", "at", "steady peak");
-    for (const auto& ex : res.observables)
-      fmt::print(out, "  {:<16} {:>12} {:>12} {:>11}   {:>12} {:>12}   {:>12}\n", ex.name,
-                 format_si(ex.worst, ex.unit, 4), sweep_argument_text(c, sw, ex.worst_at), format_si(ex.t_peak, "s", 4),
-                 format_si(ex.best, ex.unit, 4), sweep_argument_text(c, sw, ex.best_at),
-                 ex.steady_peak ? format_si(*ex.steady_peak, ex.unit, 4) : std::string("-"));
-    for (const auto& ex : res.ratings)
-      fmt::print(out, "  {:<30} worst {:>12} at {:>12}; best {:>12} at {:>12}\n", ex.name,
-                 format_si(ex.worst, ex.unit, 4), sweep_argument_text(c, sw, ex.worst_at), format_si(ex.best, ex.unit, 4),
-                 sweep_argument_text(c, sw, ex.best_at));
-  }
-  if (!report.ratings.empty()) {
-    fmt::print(out, "\nratings{}\n", report.sweeps.empty() ? "" : " (worst case over the sweeps)");
-    for (const auto& r : report.ratings) fmt::print(out, "  {}\n", rating_line(c, r));
-  }
-}
-
-std::string worst_json(const WorstReport& report, const Circuit& c) {
-  nlohmann::json j;
-  auto sweeps = nlohmann::json::array();
-  for (const auto& res : report.sweeps) {
-    nlohmann::json results = nlohmann::json::object();
-    const char* unit = "";
-    for (const auto& ex : res.observables) {
-      results[ex.name] = {{"worst_peak", detail::json_number(ex.worst)},
-                          {"at", detail::json_number(ex.worst_at)},
-                          {"t_peak", detail::json_number(ex.t_peak)},
-                          {"best_peak", detail::json_number(ex.best)},
-                          {"best_at", detail::json_number(ex.best_at)},
-                          {"steady_peak", ex.steady_peak ? detail::json_number(*ex.steady_peak) : nlohmann::json(nullptr)}};
-    }
-    unit = sweep_argument_unit(c, res.sweep);
-    for (auto& [name, value] : results.items()) value["at_unit"] = unit;
-    auto ratings = nlohmann::json::array();
-    for (const auto& ex : res.ratings)
-      ratings.push_back({{"name", ex.name}, {"worst", detail::json_number(ex.worst)}, {"at", detail::json_number(ex.worst_at)}});
-    sweeps.push_back({{"target", res.sweep.text},
-                      {"from", detail::json_number(res.sweep.from)},
-                      {"to", detail::json_number(res.sweep.to)},
-                      {"grid_points", res.grid.size()},
-                      {"results", results},
-                      {"ratings", ratings}});
-  }
-  j["sweeps"] = sweeps;
-  j["ratings"] = detail::json_ratings(c, report.ratings);
-  return j.dump(2) + "\n";
-}
-
-std::string worst_csv(const WorstReport& report) {
-  std::string out = "sweep,argument";
-  if (!report.sweeps.empty())
-    for (const auto& ex : report.sweeps.front().observables) out += fmt::format(",{}", ex.name);
-  out += "\n";
-  for (const auto& res : report.sweeps)
-    for (std::size_t k = 0; k < res.grid.size(); ++k) {
-      out += fmt::format("{},{}", res.sweep.text, format_exact(res.grid[k]));
-      for (const auto& v : res.grid_peaks) out += fmt::format(",{}", format_exact(v[k]));
-      out += "\n";
-    }
-  return out;
 }
 
 }  // namespace netfold
