@@ -10,6 +10,7 @@
 
 #include <fmt/format.h>
 
+#include "amend_helpers.hpp"
 #include "netfold/claims.hpp"
 #include "netfold/parse.hpp"
 #include "netfold/solve.hpp"
@@ -295,4 +296,90 @@ TEST_CASE("a resistive circuit has no time constant to claim", "[claims]") {
                             "peak R1.i = 1 mA ± 1 uA");
   CHECK(i.passed);
   CHECK_CLOSE(*i.margin, 1e-6, 1e-3);
+}
+
+namespace {
+
+// The claims `claims` added to the circuit in `text`, evaluated.
+std::vector<ClaimResult> amended_claims(const std::string& text, std::vector<netfold::testing::ClaimAmendment> claims) {
+  auto s = netfold::testing::solve_amended(text, {{}, std::move(claims)});
+  return evaluate_claims(*s.circuit, *s);
+}
+
+netfold::testing::ClaimAmendment v2_claim(ClaimQuantity q, CompareOp op, double value, Dimension d,
+                                         std::string element, std::string observable = {}) {
+  Claim c;
+  c.quantity = q;
+  c.op = op;
+  c.value = value;
+  c.dimension = d;
+  return {c, std::move(element), std::move(observable)};
+}
+
+// 100 V on 1 uF discharged through 1 kohm from 0 s: τ = 1 ms.
+const std::string kDischarge =
+    "C1: capacitor a -> gnd, 1 uF, initial 100 V\nK1: switch a -> b, closes at 0 s\nR1: resistor b -> gnd, 1 kohm\n"
+    "window 0 .. 5 ms\n";
+
+}  // namespace
+
+TEST_CASE("issue 17: a time-below claim is the RC discharge time τ·ln(V0/level)", "[claims]") {
+  // source: textbook RC discharge, v = V0·e^{−t/RC}: below 60 V from RC·ln(100/60) = 0.511 ms.
+  auto c = v2_claim(ClaimQuantity::time_below, CompareOp::le, 1e-3, Dimension::time, "", "C1.v");
+  c.claim.level = 60.0;
+  auto late = c;
+  late.claim.after = 0.2e-3;
+  auto never = c;
+  never.claim.level = 0.1;  // 100 V·e^{−5} = 0.67 V at the window's end
+  auto outside = c;
+  outside.claim.after = 6e-3;
+  const auto r = amended_claims(kDischarge, {c, late, never, outside});
+  REQUIRE(r.size() == 4);
+  CHECK(r[0].passed);
+  CHECK_CLOSE(*r[0].computed, 1e-3 * std::log(100.0 / 60.0), 1e-10);
+  CHECK_THAT(r[0].message, Catch::Contains("the last event at 0 s"));
+  CHECK_CLOSE(*r[1].computed, 1e-3 * std::log(100.0 / 60.0) - 0.2e-3, 1e-10);
+  CHECK_FALSE(r[2].passed);
+  CHECK_FALSE(r[2].computed);
+  CHECK_THAT(r[2].message, Catch::Contains("|C1.v| does not stay below 100 mV"));
+  CHECK_FALSE(r[3].passed);
+  CHECK_THAT(r[3].message, Catch::Contains("outside 0 s .. 5 ms"));
+  Claim text_of = c.claim;
+  text_of.observable.text = "C1.v";
+  text_of.after = 0.2e-3;
+  CHECK(claim_quantity_text(text_of, parse_netlist(kDischarge, "x.nf")) == "time-below C1.v 60 V after 200 µs");
+}
+
+TEST_CASE("issue 17: dvdt, didt and rms claims compare the exact stress figures", "[claims]") {
+  // source: textbook RC discharge, i = (V0/R)·e^{−t/RC}: 0.1 A at 0+, so |dv/dt| = i/C =
+  // 1e5 V/s = 0.1 V/µs and |di/dt| = 0.1 A/1 ms = 100 A/s at 0+; without a sinusoid the rms is
+  // over the window: sqrt(0.1²·(τ/2)·(1 − e^{−10})/5 ms).
+  const double rms = std::sqrt(0.01 * 0.5e-3 * (1.0 - std::exp(-10.0)) / 5e-3);
+  const auto r = amended_claims(kDischarge, {v2_claim(ClaimQuantity::dvdt, CompareOp::lt, 0.05e6, Dimension::voltage, "C1"),
+                                             v2_claim(ClaimQuantity::didt, CompareOp::lt, 200.0, Dimension::current, "R1"),
+                                             v2_claim(ClaimQuantity::rms, CompareOp::gt, 0.01, Dimension::current, "R1")});
+  REQUIRE(r.size() == 3);
+  CHECK_FALSE(r[0].passed);
+  CHECK_CLOSE(*r[0].computed, 1e5, 1e-12);
+  CHECK_THAT(r[0].message, Catch::Contains("computed 0.1 V/µs, claimed < 0.05 V/µs"));
+  CHECK(r[1].passed);
+  CHECK_CLOSE(*r[1].computed, 100.0, 1e-12);
+  CHECK(r[2].passed);
+  CHECK_CLOSE(*r[2].computed, rms, 1e-12);
+  CHECK_THAT(r[2].message, Catch::Contains("over the window 0 s .. 5 ms"));
+}
+
+TEST_CASE("issue 17: a power claim is the sustained power a resistor's rated P is judged by", "[claims]") {
+  // source: V_rms²/R (exact): 230²/26.45 = 2000 W while the contactor is closed; 0 W after.
+  const std::string heater =
+      "grid: voltage-source l -> n, cosine 230 Vrms 50 Hz\nK1: switch l -> h, closes at 0 s, opens at 100 ms\n"
+      "R_heater: resistor h -> n, 26.45 ohm\nground n\n";
+  auto c = v2_claim(ClaimQuantity::power, CompareOp::eq, 2000.0, Dimension::power, "R_heater");
+  c.claim.tolerance = 0.01;
+  c.claim.tolerance_is_percent = true;
+  const auto r = amended_claims(heater, {c});
+  REQUIRE(r.size() == 1);
+  CHECK(r[0].passed);
+  CHECK_CLOSE(*r[0].computed, 230.0 * 230.0 / 26.45, 1e-12);
+  CHECK_THAT(r[0].message, Catch::Contains("segment 1, 0 s .. 100 ms"));
 }

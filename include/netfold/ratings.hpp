@@ -10,7 +10,15 @@
 /// | inductor, switch, voltage-source `rated A` | peak_current | peak \|i\| over the window |
 /// | resistor `rated P W` | mean_power | largest steady-state mean power over the segments, whatever the window |
 /// | resistor `pulse-rated E J` | energy | ∫v·i dt over the window |
-/// | switch `rated-i2t X A2s` | i2t | ∫i² dt over the window |
+/// | `rated-i2t X A2s` (any element, v2) | i2t | ∫i² dt over the window |
+/// | capacitor `rated-dvdt` (v2) | dvdt | largest \|dv/dt\| over the window (stress.hpp) |
+/// | inductor, switch, diode `rated-didt` (v2) | didt | largest \|di/dt\| over the window |
+/// | capacitor `rated-rms` (v2) | rms_current | largest rms current over one fundamental period |
+/// | switch `rated V` (v2) | peak_voltage | peak \|v\| across the contact (open or closed) |
+/// | diode `rated X V` (v2) | peak_reverse_voltage | largest −v over the window |
+/// | diode `rated X A` (v2) | peak_forward_current | largest +i over the window |
+///
+/// Rates are reported in V/µs and A/µs (the datasheets' unit) and held in SI (V/s, A/s).
 ///
 /// With sweeps declared, the worst case over them is what is rated: worst.hpp searches it
 /// (find_worst_case, worst_case_ratings) with rating_stress as its measure.
@@ -35,9 +43,12 @@ namespace netfold {
 
 /// The stress a rating limits, with where it occurs.
 struct RatingStress {
-  double value = 0.0;          ///< SI: V, A, W, J or A²s
-  std::optional<double> time;  ///< s: when a peak occurs
+  double value = 0.0;          ///< SI: V, A, W, J, A²s, V/s or A/s
+  std::optional<double> time;  ///< s: when a peak occurs; the start of an rms or integral span
+  std::optional<double> until; ///< s: the end of an rms or integral span
   int segment = 0;             ///< the segment of a mean-power figure (from 1; 0 when none)
+  bool before_event = false;   ///< a rate: the left limit at an event at `time`
+  bool over_window = false;    ///< an rms taken over the whole window (no sinusoid, or shorter than a period)
 };
 
 /// A rating compared with the solved (or worst-case) stress.
@@ -79,8 +90,13 @@ std::string stress_location(const Solution& solution, RatingKind kind, const Rat
 
 /// "peak voltage", "peak current", "mean power", "energy", "I²t".
 std::string_view rating_quantity(RatingKind kind);
-/// "V", "A", "W", "J", "A²s".
+/// The unit of reports: "V", "A", "W", "J", "A²s", "V/µs", "A/µs".
 std::string_view rating_unit(RatingKind kind);
+
+/// A rating's value (SI) in the unit of reports with `digits` significant digits: rates in
+/// V/µs and A/µs without a prefix ("2500 V/µs"), far outside 1e-3 .. 1e6 in V/s with one;
+/// every other kind as format_si does.
+std::string rating_value_text(RatingKind kind, double value, int digits = 4);
 
 /// One line of a rating in the text reports of `solve` and `worst`, without indentation:
 /// "K1             peak current      325.1 A of      100 A  325.1 %  EXCEEDED  (at 5.1 ms;

@@ -48,7 +48,7 @@ struct CornerValue {
 /// The worst (and best) value of one quantity over one sweep.
 struct SweepExtreme {
   std::string name;        ///< observable text, or "K1 peak current" for a rating
-  std::string unit;        ///< "V", "A", "W", "J", "A²s"
+  std::string unit;        ///< "V", "A", "W", "J", "A²s"; a rating's report unit ("V/µs": its values stay SI, printed by rating_value_text)
   double worst = 0.0;      ///< largest value (peak |y| for observables)
   double worst_at = 0.0;   ///< the argument where it occurs (rad, V, A or s)
   double t_peak = 0.0;     ///< time of the peak at worst_at (observables)

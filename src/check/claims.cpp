@@ -7,6 +7,7 @@
 
 #include <fmt/format.h>
 
+#include "netfold/stress.hpp"
 #include "netfold/units.hpp"
 #include "netfold/worst.hpp"
 
@@ -44,10 +45,18 @@ std::string_view op_text(CompareOp op) {
 
 bool is_angle(const Claim& claim) { return claim.dimension == Dimension::angle; }
 
-// A value of the claim's quantity for messages; angles are shown in degrees.
+// A value of the claim's quantity for messages; angles are shown in degrees, rates of change in
+// V/µs and A/µs as the ratings show them.
 std::string show(const Claim& claim, double value, int digits) {
   if (is_angle(claim)) return format_si(value * kRadToDeg, "°", digits);
+  if (claim.quantity == ClaimQuantity::dvdt) return rating_value_text(RatingKind::dvdt, value, digits);
+  if (claim.quantity == ClaimQuantity::didt) return rating_value_text(RatingKind::didt, value, digits);
   return format_si(value, dimension_symbol(claim.dimension), digits);
+}
+
+// The level of a time-below or share claim, in the unit of its observable.
+std::string show_level(const Claim& claim, int digits) {
+  return format_si(claim.level, dimension_symbol(claim.observable.dimension()), digits);
 }
 
 // (−π, π]: the difference of two phases as the shorter turn, so that 179° and −179° are 2° apart.
@@ -113,15 +122,15 @@ class ClaimEvaluator {
         case ClaimQuantity::i2t: return {element_i2t(s_, claim.element), {}, {}};
         case ClaimQuantity::worst_peak: return worst_peak(claim);
         case ClaimQuantity::share_peak: return share_peak(claim);
-        case ClaimQuantity::power: return {element_mean_power(s_, claim.element), {}, {}};
-        // Read by the parser only once the engine computes them (several storage elements,
-        // distributions, the v2 stress figures).
-        case ClaimQuantity::frequency:
-        case ClaimQuantity::damping:
-        case ClaimQuantity::time_below:
+        case ClaimQuantity::power: return power(claim);
+        case ClaimQuantity::time_below: return below(claim);
         case ClaimQuantity::dvdt:
-        case ClaimQuantity::didt:
-        case ClaimQuantity::rms: break;
+        case ClaimQuantity::didt: return rate(claim);
+        case ClaimQuantity::rms: return rms(claim);
+        // Read by the parser only once the engine computes them (several storage elements,
+        // distributions).
+        case ClaimQuantity::frequency:
+        case ClaimQuantity::damping: return segment_quantity(claim);
       }
       return undefined("is not computed by this build");
     } catch (const Error& e) {
@@ -139,7 +148,7 @@ class ClaimEvaluator {
 
   Evaluation segment_quantity(const Claim& claim) {
     std::string name = claim_quantity_text(claim, c_);
-    if (s_.storage() == kNone)
+    if (s_.storage_elements().empty())
       return undefined(fmt::format("{} is undefined: the circuit has no capacitor or inductor", name));
     const auto& segs = s_.segments();
     if (claim.segment < 1 || static_cast<std::size_t>(claim.segment) > segs.size()) {
@@ -149,6 +158,24 @@ class ClaimEvaluator {
                                    segs.size(), segs.size() == 1 ? "" : "s", fmt::join(spans, ", ")));
     }
     const Segment& seg = segs[static_cast<std::size_t>(claim.segment - 1)];
+    if (claim.quantity == ClaimQuantity::frequency || claim.quantity == ClaimQuantity::damping) {
+      // The slowest-decaying oscillatory mode (modes are listed slowest first).
+      for (const NaturalMode& m : seg.modes)
+        if (m.oscillatory)
+          return {claim.quantity == ClaimQuantity::frequency ? m.frequency : m.damping, {}, {}};
+      return undefined(fmt::format("{} is undefined: segment {} has no oscillatory mode{}", name, claim.segment,
+                                   s_.several_states() ? "" : " (one storage element has a single real mode)"));
+    }
+    if (s_.several_states()) {
+      if (claim.quantity != ClaimQuantity::tau)
+        return undefined(fmt::format("{} is undefined with several storage elements: there is no single Thevenin "
+                                     "equivalent; claim tau, frequency or damping instead",
+                                     name));
+      Evaluation e{seg.tau, {}, {}};
+      if (std::isinf(seg.tau)) e.note = "tau is infinite: a mode does not decay (a capacitor with no DC path)";
+      else if (seg.unstable()) e.note = "tau is negative: a mode grows";
+      return e;
+    }
     const std::string& storage = c_.element(s_.storage()).name;
     switch (claim.quantity) {
       case ClaimQuantity::tau: {
@@ -195,6 +222,54 @@ class ClaimEvaluator {
       case ClaimQuantity::power: break;
     }
     return undefined(fmt::format("{} is not a quantity of a segment", name));
+  }
+
+  Evaluation power(const Claim& claim) {
+    int segment = 0;
+    const double p = element_mean_power(s_, claim.element, &segment);
+    RatingStress stress;
+    stress.segment = segment;
+    return {p, {}, stress_location(s_, RatingKind::mean_power, stress)};
+  }
+
+  Evaluation rate(const Claim& claim) {
+    const bool dv = claim.quantity == ClaimQuantity::dvdt;
+    const RateFigure r = largest_rate(
+        s_, element_observable(c_, claim.element, dv ? ObservableKind::element_voltage : ObservableKind::element_current));
+    RatingStress stress;
+    stress.value = r.value;
+    stress.time = r.time;
+    stress.before_event = r.before_event;
+    return {r.value, {}, stress_location(s_, dv ? RatingKind::dvdt : RatingKind::didt, stress)};
+  }
+
+  Evaluation rms(const Claim& claim) {
+    const RmsFigure r = largest_rms(s_, element_observable(c_, claim.element, ObservableKind::element_current));
+    RatingStress stress;
+    stress.time = r.from;
+    stress.until = r.from + r.span;
+    stress.over_window = r.over_window;
+    return {r.value, {}, stress_location(s_, RatingKind::rms_current, stress)};
+  }
+
+  Evaluation below(const Claim& claim) {
+    const Window& w = s_.window();
+    const std::string level = show_in(claim.observable, claim.level);
+    if (claim.after && (*claim.after < 0.0 || *claim.after > w.to))
+      return undefined(fmt::format("the start {} is outside 0 s .. {}, the span the window covers",
+                                   format_si(*claim.after, "s"), format_si(w.to, "s")));
+    const TimeBelow t = time_below(s_, claim.observable, claim.level, claim.after);
+    const std::string from = claim.after ? format_si(t.from, "s") : fmt::format("the last event at {}", format_si(t.from, "s"));
+    if (!t.stays_below)
+      return undefined(fmt::format("|{}| does not stay below {} after {}: it is {} at the window's end ({}); "
+                                   "lengthen the window or check the discharge path",
+                                   claim.observable.text, level, from,
+                                   show_in(claim.observable, s_.value(claim.observable, w.to)), format_si(w.to, "s")));
+    return {t.time, {}, fmt::format("below {} from {} on, measured from {}", level, format_si(t.from + t.time, "s"), from)};
+  }
+
+  static std::string show_in(const Observable& o, double value) {
+    return format_si(value, dimension_symbol(o.dimension()), kComputedDigits);
   }
 
   const Figures& figures_of(const Observable& o) {
@@ -321,8 +396,8 @@ class ClaimEvaluator {
     std::string detail = fmt::format("{} used", percent_text(r.used_percent));
     if (!r.where.empty()) detail += "; " + r.where;
     if (!r.worst_argument.empty()) detail += "; " + r.worst_argument;
-    cr.message = fmt::format("computed {} {} rated {} ({})", format_si(std::fabs(r.actual), r.unit, kComputedDigits),
-                             r.exceeded ? ">" : "<=", format_si(r.rated, r.unit, kClaimedDigits), detail);
+    cr.message = fmt::format("computed {} {} rated {} ({})", rating_value_text(r.kind, std::fabs(r.actual), kComputedDigits),
+                             r.exceeded ? ">" : "<=", rating_value_text(r.kind, r.rated, kClaimedDigits), detail);
     return cr;
   }
 
@@ -402,8 +477,9 @@ std::string claim_quantity_text(const Claim& claim, const Circuit& circuit) {
     case ClaimQuantity::worst_peak: return "worst peak " + obs;
     case ClaimQuantity::frequency: return segmented("frequency");
     case ClaimQuantity::damping: return segmented("damping");
-    case ClaimQuantity::share_peak: return fmt::format("share peak {} > {}", obs, show(claim, claim.level, kClaimedDigits));
-    case ClaimQuantity::time_below: return fmt::format("time-below {} {}", obs, show(claim, claim.level, kClaimedDigits));
+    case ClaimQuantity::share_peak: return fmt::format("share peak {} > {}", obs, show_level(claim, kClaimedDigits));
+    case ClaimQuantity::time_below: return fmt::format("time-below {} {}{}", obs, show_level(claim, kClaimedDigits),
+                         claim.after ? fmt::format(" after {}", format_si(*claim.after, "s", kClaimedDigits)) : "");
     case ClaimQuantity::dvdt:
     case ClaimQuantity::didt:
     case ClaimQuantity::rms:

@@ -106,10 +106,13 @@ void write_worst_text(std::ostream& out, const WorstReport& report, const Soluti
                  format_si(ex.worst, ex.unit, 4), sweep_argument_text(c, sw, ex.worst_at), format_si(ex.t_peak, "s", 4),
                  format_si(ex.best, ex.unit, 4), sweep_argument_text(c, sw, ex.best_at),
                  ex.steady_peak ? format_si(*ex.steady_peak, ex.unit, 4) : std::string("-"));
-    for (const auto& ex : res.ratings)
+    for (std::size_t k = 0; k < res.ratings.size(); ++k) {
+      const SweepExtreme& ex = res.ratings[k];
+      const RatingKind kind = report.ratings.at(res.rating_index[k]).kind;
       fmt::print(out, "  {:<30} worst {:>12} at {:>12}; best {:>12} at {:>12}\n", ex.name,
-                 format_si(ex.worst, ex.unit, 4), sweep_argument_text(c, sw, ex.worst_at), format_si(ex.best, ex.unit, 4),
-                 sweep_argument_text(c, sw, ex.best_at));
+                 rating_value_text(kind, ex.worst), sweep_argument_text(c, sw, ex.worst_at),
+                 rating_value_text(kind, ex.best), sweep_argument_text(c, sw, ex.best_at));
+    }
     write_statistics_text(out, res);
   }
   if (!report.ratings.empty()) {
