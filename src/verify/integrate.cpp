@@ -144,8 +144,19 @@ std::string segment_text(const Schedule& s, std::size_t i) {
 
 // Each segment's configuration and levels, the states' scale through the MNA, and atol.
 void prepare_segments(Run& r, Configurations& configs, const IntegrateOptions& options) {
+  // From the states at t = 0−: the energy they hold, E₀ = Σ ½·S_k·x_k², bounds each state of a
+  // passive network, |x_j| ≤ √(2·E₀/S_j), wherever it moves (an LC swinging its charge).
   std::vector<double> state_scale(r.n);
-  for (std::size_t k = 0; k < r.n; ++k) state_scale[k] = std::fabs(r.out.initial_states[k]) / r.scale;
+  const std::vector<ElementId> storages = r.circuit.storage_elements();
+  double energy = 0.0;
+  for (std::size_t k = 0; k < r.n; ++k) {
+    const double x = r.out.initial_states[k] / r.scale;
+    energy += 0.5 * r.circuit.element(storages[k]).value * x * x;
+  }
+  for (std::size_t k = 0; k < r.n; ++k) {
+    const double swing = std::sqrt(2.0 * energy / r.circuit.element(storages[k]).value);
+    state_scale[k] = std::max(std::fabs(r.out.initial_states[k]) / r.scale, std::isfinite(swing) ? swing : 0.0);
+  }
   for (std::size_t i = 0; i < r.s.segments.size(); ++i) {
     const ScheduledSegment& seg = r.s.segments[i];
     const std::string where = segment_text(r.s, i);
@@ -302,6 +313,7 @@ NumericalRun integrate_network(const Circuit& circuit, const Schedule& schedule,
   NumericalRun out;
   out.rtol = std::max(options.rtol, kTightestIntegratorRtol);
   out.values.assign(observables.size(), {});
+  out.observable_bound.assign(observables.size(), 0.0);  // also when the run stops early
   // The scenario, applied on this path's own account (the engine's application may be faulty).
   const AppliedScenario applied = apply_scenario(circuit, scenario);
   Run r(circuit, schedule, out);

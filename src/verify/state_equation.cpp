@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <complex>
 #include <numbers>
 
 #include <Eigen/Eigenvalues>
@@ -280,22 +281,26 @@ void StateEquation::rate(double t, const double* x, double* rate) {
 
 std::vector<double> forcing_scale(const Configuration& config, const std::vector<double>& levels,
                                   const std::vector<SourceSignal>& signals, double span) {
-  const std::size_t n = config.state_count();
-  std::vector<double> x(n, 0.0);
-  const double slow = span > 0.0 ? 1.0 / span : 0.0;
-  const double rate = std::max(config.slowest_rate, slow);
-  for (std::size_t j = 0; j < n; ++j) {
-    for (std::size_t k = 0; k < signals.size(); ++k) {
-      const double b = std::fabs(config.b(static_cast<Eigen::Index>(j), static_cast<Eigen::Index>(k)));
-      if (b == 0.0) continue;
-      if (rate > 0.0) x[j] += b * std::fabs(levels.at(k)) / rate;
-      for (const auto& s : signals[k].waveform->sinusoids) {
-        const double r = std::max(rate, kTwoPi * s.frequency);
-        if (r > 0.0) x[j] += b * std::fabs(s.amplitude) * signals[k].inv_scale / r;
-      }
-    }
-    if (!std::isfinite(x[j])) x[j] = 0.0;
+  const auto n = static_cast<Eigen::Index>(config.state_count());
+  std::vector<double> x(static_cast<std::size_t>(n), 0.0);
+  if (n == 0) return x;
+  const double sigma = span > 0.0 ? 1.0 / span : 1.0;
+  const Eigen::MatrixXcd a = config.a.cast<std::complex<double>>();
+  // |(s − A)⁻¹·b·term| per state, added term by term.
+  auto add = [&](std::complex<double> s, const Eigen::VectorXd& b, double term) {
+    if (term == 0.0 || b.isZero()) return;
+    const Eigen::MatrixXcd m = s * Eigen::MatrixXcd::Identity(n, n) - a;
+    const Eigen::VectorXcd y = Eigen::FullPivLU<Eigen::MatrixXcd>(m).solve(b.cast<std::complex<double>>());
+    for (Eigen::Index j = 0; j < n; ++j) x[static_cast<std::size_t>(j)] += std::abs(y[j]) * term;
+  };
+  for (std::size_t k = 0; k < signals.size(); ++k) {
+    const Eigen::VectorXd b = config.b.col(static_cast<Eigen::Index>(k));
+    add(sigma, b, std::fabs(levels.at(k)));
+    for (const auto& s : signals[k].waveform->sinusoids)
+      add(std::complex<double>(sigma, kTwoPi * s.frequency), b, std::fabs(s.amplitude) * signals[k].inv_scale);
   }
+  for (double& v : x)
+    if (!std::isfinite(v)) v = 0.0;
   return x;
 }
 

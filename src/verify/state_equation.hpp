@@ -156,8 +156,9 @@ class StateEquation {
 };
 
 // Magnitude the forcing can give each state over a span `span` (s), term by term:
-// Σ_k |B_jk|·|term| / max(ρ, ω, 1/span), with ρ the smallest |eigenvalue| of A and ω = 0 for the
-// level (scaled units). For one state, ρ = |a|.
+// Σ_k |((σ + jω − A)⁻¹·b_k)_j|·|term| with σ = 1/span, b_k source k's column of B, ω = 0 for the
+// level (scaled units): the forced response of each term, kept finite by σ where A has a λ = 0
+// mode or a lossless one at ω (a drift or a secular growth over the span).
 std::vector<double> forcing_scale(const Configuration& config, const std::vector<double>& levels,
                                   const std::vector<SourceSignal>& signals, double span);
 
