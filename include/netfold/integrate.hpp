@@ -102,6 +102,9 @@ enum class InitialStateMethod : std::uint8_t {
   none,                ///< no storage element
 };
 
+/// "given", "dc_operating_point", "shooting", "undetermined", "none" (the JSON's spelling).
+const char* initial_state_method_name(InitialStateMethod method);
+
 /// CVODE's work counters, summed over every segment and the shooting runs.
 struct IntegrationStats {
   long steps = 0;                    ///< internal steps
@@ -155,6 +158,7 @@ struct NumericalRun {
   /// Instants planned (times.size() when the run finished).
   std::size_t planned_samples = 0;
 
+  std::vector<std::string> state_names;  ///< the storage elements' names, in state order
   std::vector<double> initial_states;  ///< per state: its value at t = 0− used (V or A)
   InitialStateMethod initial_method = InitialStateMethod::none;
   std::string initial_note;    ///< how the initial states were found, for the report

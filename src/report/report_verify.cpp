@@ -75,6 +75,12 @@ std::string verify_json(const VerifyReport& r) {
   j["samples"] = r.samples;
   j["grid_samples"] = r.numerical.grid_samples;
   j["integrator_rtol"] = detail::json_number(r.integrator_rtol);
+  // The numerical path's own states at t = 0− (by name), and how they were found.
+  nlohmann::json initial = nlohmann::json::object();
+  for (std::size_t k = 0; k < r.numerical.initial_states.size() && k < r.numerical.state_names.size(); ++k)
+    initial[r.numerical.state_names[k]] = detail::json_number(r.numerical.initial_states[k]);
+  j["initial_states"] = initial;
+  j["initial_method"] = initial_state_method_name(r.numerical.initial_method);
   j["message"] = r.message;
   j["notes"] = r.notes;
   return j.dump(2) + "\n";

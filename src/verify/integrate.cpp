@@ -27,6 +27,17 @@ void IntegrationStats::add(const IntegrationStats& o) {
   factorizations += o.factorizations;
 }
 
+const char* initial_state_method_name(InitialStateMethod method) {
+  switch (method) {
+    case InitialStateMethod::given: return "given";
+    case InitialStateMethod::dc_operating_point: return "dc_operating_point";
+    case InitialStateMethod::shooting: return "shooting";
+    case InitialStateMethod::undetermined: return "undetermined";
+    case InitialStateMethod::none: return "none";
+  }
+  return "none";
+}
+
 namespace {
 
 // Rows of a grid, beyond which sample_times refuses to hold it.
@@ -319,6 +330,7 @@ NumericalRun integrate_network(const Circuit& circuit, const Schedule& schedule,
   Run r(circuit, schedule, out);
   r.n = circuit.storage_elements().size();
   out.states.assign(r.n, {});
+  for (ElementId id : circuit.storage_elements()) out.state_names.push_back(circuit.element(id).name);
   out.state_gain.assign(observables.size(), std::vector<double>(r.n, 0.0));
   r.signals = source_signals(applied, 1.0);
   r.scale = input_scale(applied, r.signals);
