@@ -3,7 +3,7 @@
 // inductor L1 at its far end), `sweep V1.phase -180 deg .. 180 deg step 0.1 deg`, by the closed form
 // (find_worst_case: 3601 grid responses, each peak found exactly, then golden-section refinement),
 // versus 3600 numerical runs, extrapolated from a few: each is one CVODE integration of the full
-// nodal equations over the window on the default sample grid (integrate_network with the
+// nodal equations over the window on the default sample grid (integrate_inputs with the
 // cross-check's tolerance, rtol 1e-10; and with a loose rtol 1e-6, where CVODE does fewer steps)
 // at a phase of the sweep.
 #include <numbers>
@@ -67,9 +67,9 @@ void register_all() {
       std::size_t k = 0;
       long steps = 0;
       for (auto _ : state) {
-        NumericalRun run = integrate_network(*schedules[k++ % schedules.size()], IntegrateOptions{rtol, 0.0, 5'000'000});
+        NumericalRun run = integrate_inputs(*schedules[k++ % schedules.size()], IntegrateOptions{rtol, 0.0, 5'000'000});
         steps = run.stats.steps;
-        benchmark::DoNotOptimize(run.state.back());
+        benchmark::DoNotOptimize(run.states.front().back());
       }
       state.counters["steps"] = static_cast<double>(steps);
     };

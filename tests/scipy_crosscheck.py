@@ -532,9 +532,48 @@ def check_norton_port_current(netfold, directory):
             f"v_oc rel {e_voc:.2g}")
 
 
+def check_periodic_steady_state(netfold, directory):
+    # The cross-check's own periodic steady state before t = 0 with two states (`verify --json`,
+    # "initial_states"), found by shooting with the monodromy matrix, against SciPy's Radau
+    # (rtol 1e-12; source: scipy.integrate.solve_ivp, SciPy 1.10) run from rest over 60 periods
+    # until the transient has decayed (slowest decay e^(-55 t): e^(-66) after 1.2 s). Derived by
+    # hand from the circuit: a 50 Hz supply through 1 Ω and 10 mH into 100 µF with a 1 kΩ load,
+    #   L·di/dt = v_s(t) - R·i - v,   C·dv/dt = i - v/R_l,   v_s = 325·cos(ωt + 30°).
+    R, L, C, Rl, f = 1.0, 10e-3, 100e-6, 1e3, 50.0
+    w, phase = TWO_PI * f, math.radians(30.0)
+    def rhs(t, y):
+        i, v = y
+        return [(325.0 * math.cos(w * t + phase) - R * i - v) / L, (i - v / Rl) / C]
+    periods = 60
+    sol = solve_ivp(rhs, (-periods / f, 0.0), [0.0, 0.0], method="Radau", rtol=RTOL_RADAU, atol=1e-10,
+                    t_eval=[0.0])
+    if not sol.success:
+        raise RuntimeError(f"solve_ivp failed: {sol.message}")
+    ref = {"L1": sol.y[0, -1], "C1": sol.y[1, -1]}
+    out = netfold_json(netfold, directory, "periodic_two_states", """
+mains: voltage-source s -> gnd, cosine 325 V 50 Hz phase 30 deg
+R1: resistor s -> b, 1 ohm
+L1: inductor b -> c, 10 mH
+C1: capacitor c -> gnd, 100 uF
+load: resistor c -> gnd, 1 kohm
+K1: switch c -> d, closes at 10 ms
+R2: resistor d -> gnd, 100 ohm
+watch C1.v, L1.i
+window 0 s .. 40 ms
+""", "verify")
+    got = out.get("initial_states", {})
+    # Each state against the magnitude of its own steady swing (a state may pass near 0 at t = 0).
+    swing = {"L1": 325.0 / abs(complex(R, w * L) + 1.0 / complex(1.0 / Rl, w * C)), "C1": 325.0}
+    errors = {k: abs(got.get(k, float("nan")) - ref[k]) / swing[k] for k in ref}
+    passed = out.get("passed") is True and all(e <= 1e-9 for e in errors.values())
+    return ("periodic_steady_state", passed,
+            ", ".join(f"{k} {got.get(k)} (SciPy {ref[k]:.12g}, rel {errors[k]:.2g})" for k in ref)
+            + f"; verify {'passed' if out.get('passed') else 'failed'}: {out.get('message')}")
+
+
 def extra_checks():
     return [check_sine_phase_sweep, check_harmonic_phase_sweep, check_resistor_power_rating,
-            check_norton_port_current]
+            check_norton_port_current, check_periodic_steady_state]
 
 
 def run_netfold(netfold, case, directory):

@@ -13,6 +13,7 @@
 #include "circuit_helpers.hpp"
 #include "netfold/integrate.hpp"
 #include "netfold/solve.hpp"
+#include "netfold/verify.hpp"
 #include "verify/initial_state.hpp"
 
 using namespace netfold;
@@ -51,11 +52,11 @@ TEST_CASE("the integrator reproduces the RC charging law v(t) = V(1 - exp(-t/RC)
   n.window(0.0, 5e-3);
   Circuit c = std::move(n).build();
   Solution s = solve(c);
-  NumericalRun run = integrate_network(s, {1e-10, 0.0, 5'000'000});
+  NumericalRun run = integrate_inputs(s, {1e-10, 0.0, 5'000'000});
   REQUIRE(run.status == IntegrationStatus::ok);
   REQUIRE(run.times.size() == 4001);
   const double tau = 1e3 * 1e-6;
-  double dv = max_deviation(run, run.state, [&](double t) { return 10.0 * (1.0 - std::exp(-t / tau)); });
+  double dv = max_deviation(run, run.states[0], [&](double t) { return 10.0 * (1.0 - std::exp(-t / tau)); });
   INFO("max |v_num - V(1 - e^(-t/RC))| = " << dv << " V");
   CHECK(dv <= 1e-8 * 10.0);
   // The capacitor current from the same full MNA solve: i = (V/R)·e^{-t/RC}.
@@ -74,10 +75,10 @@ TEST_CASE("the integrator reproduces the RL current rise i(t) = V/R (1 - exp(-tR
   n.window(0.0, 4e-3);
   Circuit c = std::move(n).build();
   Solution s = solve(c);
-  NumericalRun run = integrate_network(s, {1e-10, 0.0, 5'000'000});
+  NumericalRun run = integrate_inputs(s, {1e-10, 0.0, 5'000'000});
   REQUIRE(run.status == IntegrationStatus::ok);
   const double tau = 3e-3 / 6.0;
-  double di = max_deviation(run, run.state, [&](double t) { return 2.0 * (1.0 - std::exp(-t / tau)); });
+  double di = max_deviation(run, run.states[0], [&](double t) { return 2.0 * (1.0 - std::exp(-t / tau)); });
   INFO("max |i_num - V/R (1 - e^(-tR/L))| = " << di << " A");
   CHECK(di <= 1e-8 * 2.0);
   double dv = max_deviation(run, run.values[index_of(s, "L1.v")], [&](double t) { return 12.0 * std::exp(-t / tau); });
@@ -111,7 +112,7 @@ TEST_CASE("a sample at an event time holds the value just after the event", "[in
   n.resolution(dt);
   Circuit c = std::move(n).build();
   Solution s = solve(c);
-  NumericalRun run = integrate_network(s);
+  NumericalRun run = integrate_inputs(s);
   REQUIRE(run.status == IntegrationStatus::ok);
   REQUIRE(run.times[10] == t_event);
   const auto& i = run.values[index_of(s, "C1.i")];
@@ -133,11 +134,11 @@ TEST_CASE("with DC sources the state before t = 0 is the DC operating point", "[
   n.window(0.0, 5e-3);
   Circuit c = std::move(n).build();
   Solution s = solve(c);
-  NumericalRun run = integrate_network(s);
+  NumericalRun run = integrate_inputs(s);
   REQUIRE(run.status == IntegrationStatus::ok);
   CHECK(run.initial_method == InitialStateMethod::dc_operating_point);
-  CHECK(run.initial_state == Approx(7.5).epsilon(1e-13));
-  CHECK(run.state.front() == Approx(7.5).epsilon(1e-13));
+  CHECK(run.initial_states[0] == Approx(7.5).epsilon(1e-13));
+  CHECK(run.states[0].front() == Approx(7.5).epsilon(1e-13));
 }
 
 TEST_CASE("with a sinusoidal source the state before t = 0 is found by shooting", "[integrate]") {
@@ -156,12 +157,12 @@ TEST_CASE("with a sinusoidal source the state before t = 0 is found by shooting"
     n.window(0.0, 20e-3);
     Circuit c = std::move(n).build();
     Solution s = solve(c);
-    NumericalRun run = integrate_network(s, {1e-10, 0.0, 5'000'000});
+    NumericalRun run = integrate_inputs(s, {1e-10, 0.0, 5'000'000});
     REQUIRE(run.status == IntegrationStatus::ok);
     CHECK(run.initial_method == InitialStateMethod::shooting);
     const std::complex<double> v = std::polar(10.0, phase) / std::complex<double>(1.0, 2 * kPi * 50.0 * k.r * k.c);
-    INFO("tau = " << k.r * k.c << " s: numeric " << run.initial_state << " V, expected " << v.real() << " V");
-    CHECK(std::fabs(run.initial_state - v.real()) <= 1e-7 * std::abs(v));
+    INFO("tau = " << k.r * k.c << " s: numeric " << run.initial_states[0] << " V, expected " << v.real() << " V");
+    CHECK(std::fabs(run.initial_states[0] - v.real()) <= 1e-7 * std::abs(v));
   }
 }
 
@@ -178,14 +179,14 @@ TEST_CASE("frequencies without a common period are shot one group at a time, wit
   n.window(0.0, 20e-3);
   Circuit c = std::move(n).build();
   Solution s = solve(c);
-  NumericalRun run = integrate_network(s, {1e-10, 0.0, 5'000'000});
+  NumericalRun run = integrate_inputs(s, {1e-10, 0.0, 5'000'000});
   REQUIRE(run.status == IntegrationStatus::ok);
   CHECK(run.initial_method == InitialStateMethod::shooting);
   CHECK_THAT(run.initial_note, Catch::Contains("2 groups of harmonically related sinusoids"));
   double expected = 0.0;
   for (double f : {f1, f2}) expected += (1.0 / std::complex<double>(1.0, 2 * kPi * f * rc)).real();
-  INFO("numeric " << run.initial_state << " V, expected " << expected << " V");
-  CHECK(std::fabs(run.initial_state - expected) <= 1e-8 * 2.0);
+  INFO("numeric " << run.initial_states[0] << " V, expected " << expected << " V");
+  CHECK(std::fabs(run.initial_states[0] - expected) <= 1e-8 * 2.0);
 }
 
 TEST_CASE("an inductor whose loop is open with zero current is held at zero, then rises", "[integrate]") {
@@ -200,12 +201,12 @@ TEST_CASE("an inductor whose loop is open with zero current is held at zero, the
   Solution s = solve(c);
   REQUIRE(s.segments().size() == 2);
   REQUIRE(s.segments()[0].mode == PortMode::held_at_zero);
-  NumericalRun run = integrate_network(s, {1e-10, 0.0, 5'000'000});
+  NumericalRun run = integrate_inputs(s, {1e-10, 0.0, 5'000'000});
   REQUIRE(run.status == IntegrationStatus::ok);
   for (std::size_t k = 0; k < run.times.size(); ++k)
-    if (run.segment_of[k] == 0) REQUIRE(run.state[k] == 0.0);
+    if (run.segment_of[k] == 0) REQUIRE(run.states[0][k] == 0.0);
   double di = max_deviation(
-      run, run.state, [](double t) { return t < 2e-3 ? 0.0 : 1.0 * (1.0 - std::exp(-(t - 2e-3) / 1e-3)); });
+      run, run.states[0], [](double t) { return t < 2e-3 ? 0.0 : 1.0 * (1.0 - std::exp(-(t - 2e-3) / 1e-3)); });
   CHECK(di <= 1e-8);
   CHECK(run.stats.restarts == 1);  // the held segment has no ODE
 }
@@ -218,7 +219,7 @@ TEST_CASE("a step budget that is too small ends the run with a message, not a ha
   n.window(0.0, 1.0);  // 10^6 periods
   Circuit c = std::move(n).build();
   Solution s = solve(c);
-  NumericalRun run = integrate_network(s, {1e-9, 0.0, 20'000});
+  NumericalRun run = integrate_inputs(s, {1e-9, 0.0, 20'000});
   CHECK(run.status == IntegrationStatus::budget_exhausted);
   CHECK_THAT(run.message, Catch::Contains("the step budget of 20000 CVODE steps was spent at t = "));
   CHECK_THAT(run.message, Catch::Contains("holds 1e+06 periods of the fastest sinusoid, 1 MHz"));
@@ -239,7 +240,7 @@ TEST_CASE("the work counters add up over every segment and configuration", "[int
   Circuit c = std::move(n).build();
   Solution s = solve(c);
   REQUIRE(s.segments().size() == 4);
-  NumericalRun run = integrate_network(s);
+  NumericalRun run = integrate_inputs(s);
   REQUIRE(run.status == IntegrationStatus::ok);
   CHECK(run.stats.restarts == 4);
   CHECK(run.stats.factorizations == 2);  // K1 closed, K1 open
@@ -258,7 +259,7 @@ TEST_CASE("a stiff RC (tau = 1 ns) driven at 50 Hz over 100 ms tracks its source
   n.window(0.0, 0.1);
   Circuit c = std::move(n).build();
   Solution s = solve(c);
-  NumericalRun run = integrate_network(s, {1e-10, 0.0, 5'000'000});
+  NumericalRun run = integrate_inputs(s, {1e-10, 0.0, 5'000'000});
   REQUIRE(run.status == IntegrationStatus::ok);
   const double w = 2 * kPi * 50.0;
   const std::complex<double> i_ss = std::complex<double>(0.0, w * 1e-9) * 100.0 / std::complex<double>(1.0, w * 1e-9);
@@ -280,7 +281,7 @@ TEST_CASE("a circuit without a storage element is its MNA solution at every samp
   n.window(0.0, 20e-3);
   Circuit c = std::move(n).build();
   Solution s = solve(c);
-  NumericalRun run = integrate_network(s);
+  NumericalRun run = integrate_inputs(s);
   REQUIRE(run.status == IntegrationStatus::ok);
   CHECK(run.initial_method == InitialStateMethod::none);
   CHECK(run.stats.steps == 0);

@@ -74,7 +74,7 @@ struct VerifyReport {
   std::vector<ObservableError> observables;  ///< one per Solution::observables(), in order
   std::size_t samples = 0;           ///< samples compared
   double integrator_rtol = 0.0;      ///< CVODE's relative tolerance
-  double integrator_atol = 0.0;      ///< CVODE's absolute tolerance on the state (V or A)
+  std::vector<double> integrator_atol;  ///< per state: CVODE's absolute tolerance (V or A)
   IntegrationStats stats;            ///< CVODE's work
   /// One line with the numbers compared: "max rel error 3.1e-05 > rtol 1e-06 at t = 12 ms in
   /// coil_l.i", or why the integration stopped.
@@ -83,7 +83,16 @@ struct VerifyReport {
   NumericalRun numerical;            ///< the numerical waveforms (times, state, values)
 };
 
-/// Integrates the network of `solution` numerically and compares it with the closed form at
+/// The schedule the numerical path integrates over: build_schedule of the circuit under the
+/// solution's scenario as given (SolveOptions::scenario, applied here again), over the
+/// solution's window (an input of the schedule, not a result of the closed form).
+Schedule numerical_schedule(const Solution& solution);
+
+/// integrate_network on a solution's inputs only — its circuit, its scenario as given, the
+/// numerical_schedule and its observables — none of its results.
+NumericalRun integrate_inputs(const Solution& solution, const IntegrateOptions& options = {});
+
+/// Integrates the network of `solution`'s inputs numerically (integrate_inputs) and compares it with the closed form at
 /// the compared instants (see the file comment). A threshold the integrator cannot reach, or a run
 /// that cannot finish, is a failed report, not an exception. Throws InputError for rtol ≤ 0 and
 /// for an observable undefined in some segment; NumericError when CVODE cannot be set up.

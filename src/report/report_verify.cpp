@@ -30,10 +30,15 @@ void write_verify_text(std::ostream& out, const VerifyReport& r, const Solution&
   const std::size_t grid = r.numerical.grid_samples;
   fmt::print(out, "closed form against {} (CVODE, BDF, Newton) on the full nodal equations, {} samples{}\n", r.method,
              r.samples, r.numerical.sample_stride > 1 ? fmt::format(" of a grid of {} (see the note)", grid) : "");
-  fmt::print(out, "integrator tolerances: rtol {:.1e}, atol {}\n\n", r.integrator_rtol,
-             sol.storage() != kNone
-                 ? format_si(r.integrator_atol, c.element(sol.storage()).kind == ElementKind::capacitor ? "V" : "A", 3)
-                 : std::string("-"));
+  // One absolute tolerance per state, each in its own unit.
+  std::string atol;
+  const std::vector<ElementId>& states = c.storage_elements();
+  for (std::size_t k = 0; k < states.size() && k < r.integrator_atol.size(); ++k) {
+    const std::string value =
+        format_si(r.integrator_atol[k], c.element(states[k]).kind == ElementKind::capacitor ? "V" : "A", 3);
+    atol += states.size() == 1 ? value : fmt::format("{}{} {}", k == 0 ? "" : ", ", c.element(states[k]).name, value);
+  }
+  fmt::print(out, "integrator tolerances: rtol {:.1e}, atol {}\n\n", r.integrator_rtol, atol.empty() ? "-" : atol);
   fmt::print(out, "{:<18} {:>13} {:>13} {:>12} {:>11}\n", "observable", "max |closed|", "max |error|", "rel. error",
              "at");
   for (const auto& o : r.observables) {
@@ -70,6 +75,12 @@ std::string verify_json(const VerifyReport& r) {
   j["samples"] = r.samples;
   j["grid_samples"] = r.numerical.grid_samples;
   j["integrator_rtol"] = detail::json_number(r.integrator_rtol);
+  // The numerical path's own states at t = 0− (by name), and how they were found.
+  nlohmann::json initial = nlohmann::json::object();
+  for (std::size_t k = 0; k < r.numerical.initial_states.size() && k < r.numerical.state_names.size(); ++k)
+    initial[r.numerical.state_names[k]] = detail::json_number(r.numerical.initial_states[k]);
+  j["initial_states"] = initial;
+  j["initial_method"] = initial_state_method_name(r.numerical.initial_method);
   j["message"] = r.message;
   j["notes"] = r.notes;
   return j.dump(2) + "\n";

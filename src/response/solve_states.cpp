@@ -12,6 +12,7 @@
 #include "reduce/state_space.hpp"
 #include "response/modal.hpp"
 #include "response/solve_support.hpp"
+#include "response/test_seams.hpp"
 
 namespace netfold {
 
@@ -262,7 +263,8 @@ void StateSolver::solve_segments(Solution& s) {
     seg.state_start = x(0);
     seg.states_start.assign(x.data(), x.data() + n);
 
-    const StateSpace ss = state_space(c, *net);
+    StateSpace ss = state_space(c, *net);
+    ss.a /= seams::engine_faults().tau_scale;  // the test seam: every time constant × tau_scale
     auto modal = std::make_shared<ModalResponse>(
         response::solve_modal(ss.a, ss.b, x, source_drives(s, seg), seg.from, seg.to));
     if (!modal->accuracy().ok)

@@ -16,7 +16,7 @@ namespace netfold::seams {
 // The faults the engine can be made to commit. Adding a seam is one member here, read where the
 // engine computes what it falsifies.
 struct EngineFaults {
-  double tau_scale = 1.0;                // every segment's time constant × this (solve.cpp)
+  double tau_scale = 1.0;                // every segment's time constant × this (solve.cpp, solve_states.cpp: A / this)
   bool difference_drops_node_b = false;  // `@a - @b` evaluated as `@a` (observable form)
   bool current_sign_flip = false;        // `X.i` evaluated from the second node to the first
   double sweep_phase_offset = 0.0;       // rad added to every swept source phase (solve.cpp)

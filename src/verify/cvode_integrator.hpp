@@ -4,6 +4,8 @@
 
 #include <string>
 
+#include <Eigen/Dense>
+
 #include <nvector/nvector_serial.h>
 #include <sundials/sundials_context.h>
 #include <sundials/sundials_linearsolver.h>
@@ -20,23 +22,26 @@ struct StepBudget {
   long used = 0;  // steps of the runs finished so far
 };
 
-// CVODE with a 1×1 dense Newton matrix (the state is scalar); its Jacobian ∂f/∂x is CVODE's own
-// difference quotient of the right-hand side, so nothing but f enters the integration. With
-// `quadrature`, the system has a second component Q = ∫x dt from each start (dQ/dt = x, a 2×2
-// Newton matrix; CVODE has no separate quadrature), under the same error control.
+// CVODE with a dense n×n Newton matrix I − γ·A (n states); its Jacobian is the configuration's
+// A (Configuration::a, from full nodal solves with unit states: the network is linear, so it
+// is exact). With `quadrature`, the system has n more components Q = ∫x dt from each start
+// (dQ/dt = x, a 2n×2n Newton matrix; CVODE has no separate quadrature), under the same error
+// control.
 class Integrator {
  public:
-  Integrator(StepBudget& budget, bool quadrature);
+  Integrator(StepBudget& budget, std::size_t states, bool quadrature);
   ~Integrator();
   Integrator(const Integrator&) = delete;
   Integrator& operator=(const Integrator&) = delete;
 
   // (Re)starts at x(t0) = x0 on `eq`, never stepping past tstop; hmax = 0: no step limit.
-  void start(StateEquation& eq, double t0, double x0, double tstop, double rtol, double atol, double hmax);
+  // atol: one absolute tolerance per state (the quadrature's are the states' times the span).
+  void start(StateEquation& eq, double t0, const Eigen::VectorXd& x0, double tstop, double rtol,
+             const Eigen::VectorXd& atol, double hmax);
   // Advances to t (t0 ≤ t ≤ tstop) and gives x(t); false when the run had to stop (status()).
-  bool advance_to(double t, double& x);
+  bool advance_to(double t, Eigen::VectorXd& x);
   // ∫x dt from the start to the last output (quadrature runs only).
-  double quadrature() const { return q_; }
+  const Eigen::VectorXd& quadrature() const { return q_; }
   // Adds the counters of the run since the last start() to the totals and to the budget.
   void finish();
 
@@ -46,6 +51,7 @@ class Integrator {
 
  private:
   StepBudget* budget_;
+  std::size_t n_;
   bool quadrature_;
   SUNContext ctx_ = nullptr;
   N_Vector y_ = nullptr, atol_ = nullptr;
@@ -54,8 +60,8 @@ class Integrator {
   void* mem_ = nullptr;
   bool initialized_ = false;
   StateEquation* eq_ = nullptr;
-  double t0_ = 0.0, x0_ = 0.0, tstop_ = 0.0;
-  double t_ = 0.0, x_ = 0.0, q_ = 0.0;  // last output
+  double t0_ = 0.0, tstop_ = 0.0, t_ = 0.0;
+  Eigen::VectorXd x0_, x_, q_;  // the start, and the last output
   IntegrationStats total_, base_;
   IntegrationStatus status_ = IntegrationStatus::ok;
   std::string message_, last_error_;

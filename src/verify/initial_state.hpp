@@ -1,9 +1,11 @@
 #pragma once
-// The numerical path's state at t = 0−, found from the circuit alone (see initial_state.cpp);
+// The numerical path's states at t = 0−, found from the circuit alone (see initial_state.cpp);
 // private to src/verify/.
 
 #include <string>
 #include <vector>
+
+#include <Eigen/Dense>
 
 #include "netfold/integrate.hpp"
 #include "verify/cvode_integrator.hpp"
@@ -11,21 +13,23 @@
 
 namespace netfold::integration {
 
-// Result of the search for the state at t = 0−.
+// Result of the search for the states at t = 0−.
 struct InitialState {
-  double value = 0.0;  // in units of the input scale S
+  Eigen::VectorXd values;  // per state, in units of the input scale S
   InitialStateMethod method = InitialStateMethod::none;
-  std::string note;    // how it was found, for the report
+  std::string note;        // how they were found, for the report
   // ok: found; else the integrator stopped (budget, CVODE error) with this status and message.
   IntegrationStatus status = IntegrationStatus::ok;
   std::string message;
   IntegrationStats stats;  // CVODE's work for the shooting runs
+  int shooting_iterations = 0;  // Newton corrections of the largest shooting (0 without)
 };
 
-// The state at t = 0−: given (the storage element's `initial`, or the scenario's initial state),
-// else the steady state of the network before t = 0, or 0 where that is undetermined. `signals`
-// carry the input scale S = `scale`; `rtol` is the run's CVODE tolerance.
-InitialState find_initial_state(const Solution& schedule, Configurations& configs,
+// The states at t = 0−: each one given (the scenario's residual state, else its `initial`)
+// keeps that value; the others come from the steady state of the network before t = 0, or 0
+// where that is undetermined. `signals` carry the input scale S = `scale`; `rtol` is the run's
+// CVODE tolerance.
+InitialState find_initial_state(const AppliedScenario& applied, Configurations& configs,
                                 const std::vector<SourceSignal>& signals, double scale, StepBudget& budget,
                                 double rtol);
 
@@ -35,5 +39,9 @@ std::vector<std::vector<double>> harmonic_groups(const std::vector<double>& freq
 
 // Most periods of its fastest sinusoid one shooting run integrates over (its cost).
 inline constexpr double kMaxShootingPeriods = 1000.0;
+// The shooting's Newton iteration stops when a correction is below this share of the state.
+inline constexpr double kShootingTolerance = 1e-12;
+// ... or after this many corrections (the integrator's own error then sets the floor).
+inline constexpr int kMaxShootingIterations = 5;
 
 }  // namespace netfold::integration

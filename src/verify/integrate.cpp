@@ -1,4 +1,4 @@
-// integrate_network (integrate.hpp): the compared instants, the input scale, the state at t = 0−
+// integrate_network (integrate.hpp): the compared instants, the input scale, the states at t = 0−
 // (initial_state.cpp), then CVODE segment by segment (cvode_integrator.cpp) on the state
 // equation of each configuration (state_equation.cpp), and the circuit's own bounds on every
 // observable for the comparison.
@@ -25,6 +25,17 @@ void IntegrationStats::add(const IntegrationStats& o) {
   linear_setups += o.linear_setups;
   restarts += o.restarts;
   factorizations += o.factorizations;
+}
+
+const char* initial_state_method_name(InitialStateMethod method) {
+  switch (method) {
+    case InitialStateMethod::given: return "given";
+    case InitialStateMethod::dc_operating_point: return "dc_operating_point";
+    case InitialStateMethod::shooting: return "shooting";
+    case InitialStateMethod::undetermined: return "undetermined";
+    case InitialStateMethod::none: return "none";
+  }
+  return "none";
 }
 
 namespace {
@@ -68,10 +79,10 @@ struct SamplePlan {
   std::size_t grid_samples = 0, skipped = 0, stride = 1;
 };
 
-SamplePlan plan_samples(const Solution& s) {
+SamplePlan plan_samples(const Schedule& s) {
   SamplePlan plan;
-  const Window& w = s.window();
-  const double res = s.resolution();
+  const Window& w = s.window;
+  const double res = s.resolution;
   const std::size_t n = grid_count(w, res);
   auto at = [&](std::size_t k) { return n == 1 ? w.from : grid_time(w, res, k); };
   std::size_t k0 = 0;
@@ -86,7 +97,7 @@ SamplePlan plan_samples(const Solution& s) {
     plan.stride = (plan.grid_samples - 1 + kMaxComparedSamples - 3) / (kMaxComparedSamples - 2);
   // (t, segment) pairs: the grid's, and with a stride every event instant from both sides.
   std::vector<std::pair<double, std::uint32_t>> items;
-  const auto& segs = s.segments();
+  const auto& segs = s.segments;
   std::uint32_t j = 0;
   auto add_sample = [&](std::size_t k) {
     const double t = at(k);
@@ -110,111 +121,134 @@ SamplePlan plan_samples(const Solution& s) {
   return plan;
 }
 
-// S: a power of two near the largest magnitude of the sources and of a given initial state, so
-// that the run's numbers are of order 1 (exact scaling: the network is linear).
-double input_scale(const Solution& s, const std::vector<SourceSignal>& signals) {
+// S: a power of two near the largest magnitude of the sources and of the given initial states,
+// so that the run's numbers are of order 1 (exact scaling: the network is linear).
+double input_scale(const AppliedScenario& applied, const std::vector<SourceSignal>& signals) {
   double m = 0.0;
   for (const auto& sig : signals) m = std::max(m, sig.magnitude());
-  if (const ElementId storage = storage_element(s.circuit()); storage != kNone) {
-    const auto initial = given_initial_state(s, storage);
-    if (initial) m = std::max(m, std::fabs(*initial));
-  }
+  for (ElementId id : applied.circuit().storage_elements())
+    if (const auto initial = given_initial_state(applied, id)) m = std::max(m, std::fabs(*initial));
   if (!(m > 0.0) || !std::isfinite(m)) return 1.0;
   return std::ldexp(1.0, std::clamp(std::ilogb(m), -1000, 1000));
 }
 
 // The run's shared state while it steps through the segments.
 struct Run {
-  Run(const Solution& schedule, NumericalRun& result) : s(schedule), out(result) {}
-  const Solution& s;
+  Run(const Circuit& c, const Schedule& schedule, NumericalRun& result) : circuit(c), s(schedule), out(result) {}
+  const Circuit& circuit;
+  const Schedule& s;
   NumericalRun& out;
   std::vector<SourceSignal> signals;
   double scale = 1.0;
-  ElementId storage = kNone;
-  double storage_value = 1.0;
+  std::size_t n = 0;  // states
   double hmax = 0.0;
-  std::vector<PortMode> seg_mode;  // the numerical path's own reading of each segment's topology
-  std::vector<const Configuration*> seg_config;
+  std::vector<const Configuration*> seg_config;  // the numerical path's own reading of each segment
   std::vector<std::vector<double>> seg_levels;
+  Eigen::VectorXd atol;  // per state, scaled
 };
 
-// Each segment's configuration and levels, the state's scale through the MNA, and atol.
-void prepare_segments(Run& r, Configurations& configs, const IntegrateOptions& options) {
-  const bool has_storage = r.storage != kNone;
-  double state_scale = std::fabs(r.out.initial_state) / r.scale;
-  for (const auto& seg : r.s.segments()) {
-    const std::string where =
-        fmt::format("segment {} ({} .. {})", seg.number, format_si(seg.from, "s"), format_si(seg.to, "s"));
-    const PortMode mode = has_storage ? configs.mode_for(seg.positions, where) : PortMode::port;
-    r.seg_mode.push_back(mode);
-    r.seg_config.push_back(&configs.get(seg.positions, mode, where));
-    std::vector<double> levels;
-    for (const auto& sig : r.signals) levels.push_back(sig.level_at(seg.from));
-    if (has_storage && mode == PortMode::port)
-      state_scale = std::max(state_scale, forcing_scale(sensitivities(*r.seg_config.back(), r.storage_value), levels,
-                                                        r.signals, r.s.window().to));
-    r.seg_levels.push_back(std::move(levels));
-  }
-  r.out.state_scale = state_scale * r.scale;
-  r.out.atol = options.atol > 0.0 ? options.atol
-                                   : std::max(r.out.rtol * kAtolFraction * state_scale, 1e-280) * r.scale;
+// "segment 2 (10 ms .. 20 ms)".
+std::string segment_text(const Schedule& s, std::size_t i) {
+  const ScheduledSegment& seg = s.segments[i];
+  return fmt::format("segment {} ({} .. {})", i + 1, format_si(seg.from, "s"), format_si(seg.to, "s"));
 }
 
-// Evaluates every observable at (t, z) (z the state in units of S) and appends the row; false,
+// Each segment's configuration and levels, the states' scale through the MNA, and atol.
+void prepare_segments(Run& r, Configurations& configs, const IntegrateOptions& options) {
+  // From the states at t = 0−: the energy they hold, E₀ = Σ ½·S_k·x_k², bounds each state of a
+  // passive network, |x_j| ≤ √(2·E₀/S_j), wherever it moves (an LC swinging its charge).
+  std::vector<double> state_scale(r.n);
+  const std::vector<ElementId> storages = r.circuit.storage_elements();
+  double energy = 0.0;
+  for (std::size_t k = 0; k < r.n; ++k) {
+    const double x = r.out.initial_states[k] / r.scale;
+    energy += 0.5 * r.circuit.element(storages[k]).value * x * x;
+  }
+  for (std::size_t k = 0; k < r.n; ++k) {
+    const double swing = std::sqrt(2.0 * energy / r.circuit.element(storages[k]).value);
+    state_scale[k] = std::max(std::fabs(r.out.initial_states[k]) / r.scale, std::isfinite(swing) ? swing : 0.0);
+  }
+  for (std::size_t i = 0; i < r.s.segments.size(); ++i) {
+    const ScheduledSegment& seg = r.s.segments[i];
+    const std::string where = segment_text(r.s, i);
+    std::string why;
+    const std::optional<std::vector<PortMode>> modes = configs.modes_for(seg.positions, why);
+    if (!modes) throw NumericError(fmt::format("cross-check: {} in {}, which the engine did not report", why, where));
+    r.seg_config.push_back(&configs.get(seg.positions, *modes, where));
+    std::vector<double> levels;
+    for (const auto& sig : r.signals) levels.push_back(sig.level_at(seg.from));
+    const std::vector<double> x = forcing_scale(*r.seg_config.back(), levels, r.signals, r.s.window.to);
+    for (std::size_t k = 0; k < r.n; ++k) state_scale[k] = std::max(state_scale[k], x[k]);
+    r.seg_levels.push_back(std::move(levels));
+  }
+  r.atol = Eigen::VectorXd::Zero(static_cast<Eigen::Index>(r.n));
+  for (std::size_t k = 0; k < r.n; ++k) {
+    const double atol = options.atol > 0.0 ? options.atol / r.scale
+                                           : std::max(r.out.rtol * kAtolFraction * state_scale[k], 1e-280);
+    r.atol[static_cast<Eigen::Index>(k)] = atol;
+    r.out.state_scale.push_back(state_scale[k] * r.scale);
+    r.out.atol.push_back(atol * r.scale);
+  }
+}
+
+// Evaluates every observable at (t, z) (z the states in units of S) and appends the row; false,
 // with the run's status set, when a value is not finite.
-bool record(Run& r, StateEquation& eq, double t, std::uint32_t seg, double z) {
+bool record(Run& r, StateEquation& eq, double t, std::uint32_t seg, const Eigen::VectorXd& z) {
   const Configuration& cfg = eq.config();
-  const Eigen::VectorXd u = eq.inputs(t, z);
+  const Eigen::VectorXd u = eq.inputs(t, z.data());
   const Eigen::VectorXd xs = cfg.unknowns(u);
   NumericalRun& out = r.out;
   const std::size_t n = cfg.observable_forms.size();
-  std::vector<double> row(n), gain(n);
-  bool finite = std::isfinite(z);
+  std::vector<double> row(n);
+  std::vector<std::vector<double>> gain(n, std::vector<double>(r.n));
+  bool finite = z.allFinite();
   for (std::size_t i = 0; i < n; ++i) {
     const auto& [f, g] = cfg.observable_forms[i];
-    const auto [df, dg] = cfg.observable_gains[i];
+    const auto& [df, dg] = cfg.observable_gains[i];
     row[i] = evaluate(f, xs, u) * r.scale;
-    gain[i] = std::fabs(df);
+    for (std::size_t k = 0; k < r.n; ++k) gain[i][k] = std::fabs(df[k]);
     if (g) {
       const double gi = evaluate(*g, xs, u) * r.scale;
-      gain[i] = std::fabs(row[i] * dg + gi * df);  // ∂(v·i)/∂x
+      for (std::size_t k = 0; k < r.n; ++k) gain[i][k] = std::fabs(row[i] * dg[k] + gi * df[k]);  // ∂(v·i)/∂x_k
       row[i] *= gi;
     }
     finite = finite && std::isfinite(row[i]);
   }
   if (!finite) {
     out.status = IntegrationStatus::failed;
-    out.message = fmt::format("the numerical solution is not finite at t = {} (state {:.6g})", format_si(t, "s"),
-                              z * r.scale);
+    out.message = fmt::format("the numerical solution is not finite at t = {} (largest state {:.6g})",
+                              format_si(t, "s"), z.size() ? z.cwiseAbs().maxCoeff() * r.scale : 0.0);
     return false;
   }
   out.times.push_back(t);
   out.segment_of.push_back(seg);
-  out.state.push_back(z * r.scale);
+  for (std::size_t k = 0; k < r.n; ++k) out.states[k].push_back(z[static_cast<Eigen::Index>(k)] * r.scale);
   for (std::size_t i = 0; i < n; ++i) {
     out.values[i].push_back(row[i]);
-    out.state_gain[i] = std::max(out.state_gain[i], gain[i]);
+    for (std::size_t k = 0; k < r.n; ++k) out.state_gain[i][k] = std::max(out.state_gain[i][k], gain[i][k]);
   }
   return true;
 }
 
-// Segment by segment: restart at each event with the state carried over, record every planned
-// instant. False when the integrator stopped (its status and message are in `cv`) or a value
-// was not finite (in the run's).
+// Segment by segment: restart at each event with the states carried over (those held at zero
+// set to 0), record every planned instant. False when the integrator stopped (its status and
+// message are in `cv`) or a value was not finite (in the run's).
 bool run_segments(Run& r, const SamplePlan& plan, Integrator& cv) {
-  const auto& segments = r.s.segments();
-  const bool has_storage = r.storage != kNone;
-  double z = r.out.initial_state / r.scale;
+  const auto& segments = r.s.segments;
+  Eigen::VectorXd z(static_cast<Eigen::Index>(r.n));
+  for (std::size_t k = 0; k < r.n; ++k) z[static_cast<Eigen::Index>(k)] = r.out.initial_states[k] / r.scale;
   std::size_t p = 0;
   for (std::uint32_t i = 0; i < segments.size(); ++i) {
-    const Segment& seg = segments[i];
-    StateEquation eq(*r.seg_config[i], r.storage_value, r.signals, Forcing{r.seg_levels[i], true, {}});
-    // Without a storage element, or with an inductor held at zero, there is no ODE: the state is 0.
-    const bool ode = has_storage && r.seg_mode[i] == PortMode::port;
-    if (!ode) z = 0.0;
-    if (ode) cv.start(eq, seg.from, z, seg.to, r.out.rtol, r.out.atol / r.scale, r.hmax);
+    const ScheduledSegment& seg = segments[i];
+    const Configuration& config = *r.seg_config[i];
+    StateEquation eq(config, r.signals, Forcing{r.seg_levels[i], true, {}});
+    for (std::size_t k = 0; k < r.n; ++k)
+      if (config.modes[k] == PortMode::held_at_zero) z[static_cast<Eigen::Index>(k)] = 0.0;
+    // Without a storage element there is no ODE; with every state held at zero, none either.
+    const bool ode = std::find(config.modes.begin(), config.modes.end(), PortMode::port) != config.modes.end();
+    if (ode) cv.start(eq, seg.from, z, seg.to, r.out.rtol, r.atol, r.hmax);
+    Eigen::VectorXd zt = z;
     for (; p < plan.times.size() && plan.segment[p] == i; ++p) {
-      double zt = 0.0;
       if (ode && !cv.advance_to(plan.times[p], zt)) break;
       if (!record(r, eq, plan.times[p], i, zt)) break;
     }
@@ -240,8 +274,12 @@ double bound_of(const InputGains& g, const std::vector<double>& magnitudes) {
 // (NumericalRun::observable_bound), over the configurations of the segments.
 void compute_bounds(Run& r) {
   NumericalRun& out = r.out;
-  std::vector<double> magnitudes{std::fabs(out.initial_state)};
-  for (double x : out.state) magnitudes[0] = std::max(magnitudes[0], std::fabs(x));
+  // U_j in the network stage's input order: the states (u[0] unused without one), then the sources.
+  std::vector<double> magnitudes(std::max<std::size_t>(r.n, 1), 0.0);
+  for (std::size_t k = 0; k < r.n; ++k) {
+    magnitudes[k] = std::fabs(out.initial_states[k]);
+    for (double x : out.states[k]) magnitudes[k] = std::max(magnitudes[k], std::fabs(x));
+  }
   for (const auto& sig : r.signals) magnitudes.push_back(sig.magnitude());
   out.observable_bound.assign(out.values.size(), 0.0);
   std::vector<const Configuration*> seen;
@@ -272,44 +310,50 @@ void collect(Run& r, const Integrator& cv, const IntegrationStats& shooting, lon
   if (out.status == IntegrationStatus::budget_exhausted && !freqs.empty())
     out.message += fmt::format(" (t = 0 to the window's end holds {:.3g} periods of the fastest sinusoid, {}): "
                                "shorten the window, or raise the budget",
-                               freqs.back() * r.s.window().to, format_si(freqs.back(), "Hz"));
+                               freqs.back() * r.s.window.to, format_si(freqs.back(), "Hz"));
 }
 
 }  // namespace
 
-NumericalRun integrate_network(const Solution& s, const IntegrateOptions& options) {
+NumericalRun integrate_network(const Circuit& circuit, const Schedule& schedule, const Scenario& scenario,
+                               const std::vector<Observable>& observables, const IntegrateOptions& options) {
   if (!(options.rtol > 0.0) || !std::isfinite(options.rtol))
     throw NumericError(fmt::format("cross-check: the integrator's rtol must be positive, saw {}", options.rtol));
   if (options.max_steps <= 0)
     throw NumericError(fmt::format("cross-check: the step budget must be positive, saw {}", options.max_steps));
   NumericalRun out;
   out.rtol = std::max(options.rtol, kTightestIntegratorRtol);
-  out.values.assign(s.observables().size(), {});
-  out.state_gain.assign(s.observables().size(), 0.0);
-  Run r(s, out);
-  r.signals = source_signals(s, 1.0);
-  r.scale = input_scale(s, r.signals);
+  out.values.assign(observables.size(), {});
+  out.observable_bound.assign(observables.size(), 0.0);  // also when the run stops early
+  // The scenario, applied on this path's own account (the engine's application may be faulty).
+  const AppliedScenario applied = apply_scenario(circuit, scenario);
+  Run r(circuit, schedule, out);
+  r.n = circuit.storage_elements().size();
+  out.states.assign(r.n, {});
+  for (ElementId id : circuit.storage_elements()) out.state_names.push_back(circuit.element(id).name);
+  out.state_gain.assign(observables.size(), std::vector<double>(r.n, 0.0));
+  r.signals = source_signals(applied, 1.0);
+  r.scale = input_scale(applied, r.signals);
   for (auto& sig : r.signals) sig.inv_scale = 1.0 / r.scale;
   out.input_scale = r.scale;
   r.hmax = step_limit(source_frequencies(r.signals));
-  r.storage = storage_element(s.circuit());
-  if (r.storage != kNone) r.storage_value = s.circuit().element(r.storage).value;
 
   // 1. The instants to compare.
-  const SamplePlan plan = plan_samples(s);
+  const SamplePlan plan = plan_samples(schedule);
   out.skipped_before_zero = plan.skipped;
   out.grid_samples = plan.grid_samples;
   out.sample_stride = plan.stride;
   out.planned_samples = plan.times.size();
 
-  // 2. The state at t = 0−.
-  Configurations configs(s.circuit(), s.observables());
+  // 2. The states at t = 0−.
+  Configurations configs(circuit, observables);
   StepBudget budget{options.max_steps, 0};
-  const InitialState initial = find_initial_state(s, configs, r.signals, r.scale, budget, out.rtol);
-  out.initial_state = initial.value * r.scale;
+  const InitialState initial = find_initial_state(applied, configs, r.signals, r.scale, budget, out.rtol);
+  for (Eigen::Index k = 0; k < initial.values.size(); ++k) out.initial_states.push_back(initial.values[k] * r.scale);
   out.initial_method = initial.method;
   out.initial_note = initial.note;
-  Integrator cv(budget, false);
+  out.shooting_iterations = initial.shooting_iterations;
+  Integrator cv(budget, r.n, false);
   if (initial.status != IntegrationStatus::ok) {
     out.status = initial.status;
     out.message = "while finding the steady state before t = 0: " + initial.message;
@@ -319,7 +363,7 @@ NumericalRun integrate_network(const Solution& s, const IntegrateOptions& option
 
   // 3. The segments' configurations and tolerances, then the run, then the circuit's bounds.
   out.times.reserve(plan.times.size());
-  out.state.reserve(plan.times.size());
+  for (auto& x : out.states) x.reserve(plan.times.size());
   for (auto& v : out.values) v.reserve(plan.times.size());
   prepare_segments(r, configs, options);
   run_segments(r, plan, cv);

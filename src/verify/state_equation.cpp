@@ -1,11 +1,11 @@
 #include "verify/state_equation.hpp"
 
-#include "netfold/scenario.hpp"
-
 #include <algorithm>
 #include <cmath>
+#include <complex>
 #include <numbers>
 
+#include <Eigen/Eigenvalues>
 #include <fmt/format.h>
 
 #include "netfold/reduce.hpp"
@@ -28,6 +28,25 @@ InputGains input_gains(const LinearForm& form, const Eigen::MatrixXd& unit_unkno
   return g;
 }
 
+// ∂y/∂x_k with its sign, for every state k (the product rule of a power needs the sign).
+std::vector<double> state_gains(const LinearForm& form, const Eigen::MatrixXd& unit_unknowns, std::size_t states) {
+  std::vector<double> g(states, 0.0);
+  const Eigen::Index n = unit_unknowns.cols();
+  for (std::size_t k = 0; k < states; ++k) {
+    const auto j = static_cast<Eigen::Index>(k);
+    g[k] = evaluate(form, unit_unknowns.col(j), Eigen::VectorXd::Unit(n, j));
+  }
+  return g;
+}
+
+// Key of a configuration: its positions, then one flag per state held at zero.
+std::vector<bool> key_of(const SwitchPositions& positions, const std::vector<PortMode>& modes) {
+  std::vector<bool> key = positions.closed;
+  key.push_back(true);  // separator: the positions' length is fixed per circuit anyway
+  for (PortMode m : modes) key.push_back(m == PortMode::held_at_zero);
+  return key;
+}
+
 }  // namespace
 
 double evaluate(const LinearForm& form, const Eigen::VectorXd& x, const Eigen::VectorXd& u) {
@@ -37,16 +56,11 @@ double evaluate(const LinearForm& form, const Eigen::VectorXd& x, const Eigen::V
   return y;
 }
 
-ElementId storage_element(const Circuit& circuit) {
-  const std::vector<ElementId> storages = circuit.storage_elements();
-  return storages.empty() ? kNone : storages.front();
-}
-
 double SourceSignal::sinusoids_at(double t, const std::vector<double>* only) const {
   double v = 0.0;
   for (const auto& s : waveform->sinusoids) {
     if (only && std::find(only->begin(), only->end(), s.frequency) == only->end()) continue;
-    v += s.amplitude * std::cos(kTwoPi * s.frequency * (t + time_shift) + s.phase);
+    v += s.amplitude * std::cos(kTwoPi * s.frequency * t + s.phase);
   }
   return v * inv_scale;
 }
@@ -67,30 +81,17 @@ double SourceSignal::magnitude() const {
   return m;
 }
 
-std::vector<SourceSignal> source_signals(const Solution& s, double inv_scale) {
+std::vector<SourceSignal> source_signals(const AppliedScenario& applied, double inv_scale) {
   std::vector<SourceSignal> out;
-  // The network stage's input layout (u[1 + k] = source k), read from the circuit, not the schedule.
-  for (ElementId id : independent_sources(s.circuit())) {
-    const Element& e = s.circuit().element(id);
-    SourceSignal sig{&e.waveform, 0.0, inv_scale};
-    // The scenario's phase is the first sinusoid's `phase` as written (spec v2): read here on
-    // the numerical path's own terms, as a shift of the source's time origin by Δ/(2π·f₁), so
-    // that every harmonic moves with it and the DC part and steps stay.
-    for (const SourcePhase& sp : s.options().scenario.source_phases)
-      if (sp.source == id && !e.waveform.sinusoids.empty()) {
-        const Sinusoid& first = e.waveform.sinusoids.front();
-        sig.time_shift = (sp.phase - written_phase(s.circuit(), id)) / (kTwoPi * first.frequency);
-      }
-    out.push_back(sig);
-  }
+  // The network stage's input layout (u[first source + k] = source k), read from the circuit;
+  // each waveform as the scenario makes it (a swept phase moves every harmonic with it).
+  for (ElementId id : independent_sources(applied.circuit())) out.push_back(SourceSignal{&applied.waveform(id), inv_scale});
   return out;
 }
 
-std::optional<double> given_initial_state(const Solution& s, ElementId storage) {
-  std::optional<double> given = s.circuit().element(storage).initial;
-  for (const ResidualState& r : s.options().scenario.residual_states)
-    if (r.element == storage) given = r.value;
-  return given;
+std::optional<double> given_initial_state(const AppliedScenario& applied, ElementId storage) {
+  if (auto v = applied.initial_state(storage)) return v;
+  return applied.circuit().element(storage).initial;
 }
 
 std::vector<double> source_frequencies(const std::vector<SourceSignal>& signals) {
@@ -113,31 +114,68 @@ Eigen::VectorXd Configuration::unknowns(const Eigen::VectorXd& u) const {
   return x.col(0);
 }
 
-std::unique_ptr<Configuration> Configurations::assemble(const SwitchPositions& positions, PortMode mode,
-                                                        std::string& why) const {
+std::unique_ptr<Configuration> Configurations::assemble(const SwitchPositions& positions,
+                                                        const std::vector<PortMode>& modes, std::string& why) const {
   auto c = std::make_unique<Configuration>();
   c->positions = positions;
-  c->mode = mode;
-  c->system = build_nodal_system(circuit_, positions, BuildOptions{mode, std::nullopt, {}});
+  c->modes = modes;
+  c->system = build_nodal_system(circuit_, positions, BuildOptions{PortMode::port, std::nullopt, modes});
   if (!c->system.problems().empty()) {
     why = "its nodal equations have a structural problem";
     return nullptr;
   }
   // The same solver choice as the engine (its agreement across solvers is tested in
   // test_solvers): independence comes from solving the full system at every step for the
-  // state's own right-hand side, not from a different factorization.
+  // states' own right-hand side, not from a different factorization.
   c->lu = factor_nodal_matrix(c->system.matrix(), c->system.symmetric_positive_definite());
   if (c->lu->rcond() < kSingularRcond) {
     why = fmt::format("its nodal matrix is singular (reciprocal condition {:.1e} < {:.0e})", c->lu->rcond(),
                       kSingularRcond);
     return nullptr;
   }
-  c->port = c->system.port_quantity();
+  // A and B, column by column from full nodal solves with a unit input.
+  const std::size_t n = c->system.state_count();
+  const auto n_in = static_cast<Eigen::Index>(c->system.input_count());
+  const Eigen::Index first = c->first_source();
+  const auto nn = static_cast<Eigen::Index>(n);
+  c->a = Eigen::MatrixXd::Zero(nn, nn);
+  c->b = Eigen::MatrixXd::Zero(nn, n_in - first);
+  for (std::size_t k = 0; k < n; ++k) {
+    c->ports.push_back(c->system.port_quantity(k));
+    c->values.push_back(circuit_.element(c->system.state_elements()[k]).value);
+  }
+  std::vector<bool> active(n);
+  for (std::size_t k = 0; k < n; ++k) active[k] = c->system.port_mode(k) == PortMode::port;
+  for (Eigen::Index j = 0; j < n_in; ++j) {
+    if (j < nn && !active[static_cast<std::size_t>(j)]) continue;
+    if (j >= nn && j < first) continue;
+    const Eigen::VectorXd u = Eigen::VectorXd::Unit(n_in, j);
+    const Eigen::VectorXd x = c->unknowns(u);
+    for (std::size_t k = 0; k < n; ++k) {
+      if (!active[k]) continue;
+      const double r = evaluate(c->ports[k], x, u) / c->values[k];
+      if (j < nn) c->a(static_cast<Eigen::Index>(k), j) = r;
+      else c->b(static_cast<Eigen::Index>(k), j - first) = r;
+    }
+  }
+  std::vector<Eigen::Index> idx;
+  for (std::size_t k = 0; k < n; ++k)
+    if (active[k]) idx.push_back(static_cast<Eigen::Index>(k));
+  if (!idx.empty()) {
+    Eigen::MatrixXd sub(static_cast<Eigen::Index>(idx.size()), static_cast<Eigen::Index>(idx.size()));
+    for (std::size_t i = 0; i < idx.size(); ++i)
+      for (std::size_t j = 0; j < idx.size(); ++j)
+        sub(static_cast<Eigen::Index>(i), static_cast<Eigen::Index>(j)) = c->a(idx[i], idx[j]);
+    const Eigen::VectorXcd ev = Eigen::EigenSolver<Eigen::MatrixXd>(sub, false).eigenvalues();
+    c->slowest_rate = ev.cwiseAbs().minCoeff();
+    if (!std::isfinite(c->slowest_rate)) c->slowest_rate = 0.0;
+  }
   return c;
 }
 
 void Configurations::add_forms(Configuration& c, const std::string& where) const {
   const auto n_inputs = static_cast<Eigen::Index>(c.system.input_count());
+  const std::size_t n = c.state_count();
   Eigen::MatrixXd unit(c.system.matrix().rows(), n_inputs);
   for (Eigen::Index j = 0; j < n_inputs; ++j) unit.col(j) = c.unknowns(Eigen::VectorXd::Unit(n_inputs, j));
   for (const auto& obs : observables_) {
@@ -153,9 +191,7 @@ void Configurations::add_forms(Configuration& c, const std::string& where) const
                                                                 obs.text, where)));
     const InputGains gf = input_gains(f, unit);
     const InputGains gg = g ? input_gains(*g, unit) : InputGains{};
-    // ∂/∂x with its sign, for the product rule of a power.
-    const Eigen::VectorXd e0 = Eigen::VectorXd::Unit(n_inputs, 0);
-    c.observable_gains.emplace_back(evaluate(f, unit.col(0), e0), g ? evaluate(*g, unit.col(0), e0) : 0.0);
+    c.observable_gains.emplace_back(state_gains(f, unit, n), g ? state_gains(*g, unit, n) : std::vector<double>(n));
     c.observable_input_gains.emplace_back(gf, gg);
     c.observable_forms.emplace_back(std::move(f), std::move(g));
   }
@@ -166,9 +202,10 @@ void Configurations::add_forms(Configuration& c, const std::string& where) const
   }
 }
 
-const Configuration& Configurations::get(const SwitchPositions& positions, PortMode mode, const std::string& where) {
+const Configuration& Configurations::get(const SwitchPositions& positions, const std::vector<PortMode>& modes,
+                                         const std::string& where) {
   std::string why;
-  Configuration* c = lookup(positions, mode, why);
+  Configuration* c = lookup(positions, modes, why);
   if (!c) throw NumericError(fmt::format("cross-check: {} in {}, which the engine did not report", why, where));
   if (!c->forms_ready) {
     add_forms(*c, where);
@@ -177,90 +214,94 @@ const Configuration& Configurations::get(const SwitchPositions& positions, PortM
   return *c;
 }
 
-const Configuration* Configurations::find(const SwitchPositions& positions, PortMode mode, std::string& why) {
-  return lookup(positions, mode, why);
+const Configuration* Configurations::find(const SwitchPositions& positions, const std::vector<PortMode>& modes,
+                                          std::string& why) {
+  return lookup(positions, modes, why);
 }
 
-PortMode Configurations::mode_for(const SwitchPositions& positions, const std::string& where) {
-  std::vector<bool> key = positions.closed;
-  if (auto it = modes_.find(key); it != modes_.end()) return it->second;
-  std::string why;
-  PortMode mode = PortMode::port;
-  if (!lookup(positions, PortMode::port, why)) {
+std::optional<std::vector<PortMode>> Configurations::modes_for(const SwitchPositions& positions, std::string& why) {
+  if (auto it = modes_.find(positions.closed); it != modes_.end()) return it->second;
+  const std::vector<ElementId> states = circuit_.storage_elements();
+  std::vector<PortMode> modes(states.size(), PortMode::port);
+  if (!lookup(positions, modes, why)) {
     // The format's rule: an inductor whose loop is open carries no current, held at zero there;
     // any other problem the engine reports as an error before the cross-check runs.
-    const NodalSystem sys = build_nodal_system(circuit_, positions, BuildOptions{PortMode::port, std::nullopt, {}});
+    const NodalSystem sys = build_nodal_system(circuit_, positions, BuildOptions{PortMode::port, std::nullopt, modes});
     const auto& p = sys.problems();
-    const bool loop_open = !p.empty() && std::all_of(p.begin(), p.end(), [](const TopologyProblem& q) {
-      return q.kind == TopologyProblem::Kind::inductor_open;
-    });
-    if (!loop_open) throw NumericError(fmt::format("cross-check: {} in {}, which the engine did not report", why, where));
-    mode = PortMode::held_at_zero;
+    if (p.empty()) return std::nullopt;  // singular: `why` says so
+    for (const TopologyProblem& q : p) {
+      if (q.kind != TopologyProblem::Kind::inductor_open) return std::nullopt;
+      for (ElementId id : q.elements)
+        if (const std::uint32_t k = sys.state_input(id); k != kNone) modes[k] = PortMode::held_at_zero;
+    }
+    if (!lookup(positions, modes, why)) return std::nullopt;
   }
-  modes_.emplace(std::move(key), mode);
-  return mode;
+  modes_.emplace(positions.closed, modes);
+  return modes;
 }
 
-Configuration* Configurations::lookup(const SwitchPositions& positions, PortMode mode, std::string& why) {
+Configuration* Configurations::lookup(const SwitchPositions& positions, const std::vector<PortMode>& modes,
+                                      std::string& why) {
   // Found by hash: a sequence of many events has as many configurations, and a linear
   // search over them made the cross-check quadratic in the events.
-  std::vector<bool> key = positions.closed;
-  key.push_back(mode == PortMode::held_at_zero);
+  std::vector<bool> key = key_of(positions, modes);
   if (auto it = index_.find(key); it != index_.end()) return items_[it->second].get();
-  std::unique_ptr<Configuration> c = assemble(positions, mode, why);
+  std::unique_ptr<Configuration> c = assemble(positions, modes, why);
   if (!c) return nullptr;
   index_.emplace(std::move(key), items_.size());
   items_.push_back(std::move(c));
   return items_.back().get();
 }
 
-StateEquation::StateEquation(const Configuration& config, double storage_value,
-                             const std::vector<SourceSignal>& signals, Forcing forcing)
-    : config_(&config), storage_value_(storage_value), signals_(&signals), forcing_(std::move(forcing)),
-      u_(static_cast<Eigen::Index>(1 + signals.size())) {}
+StateEquation::StateEquation(const Configuration& config, const std::vector<SourceSignal>& signals, Forcing forcing)
+    : config_(&config), signals_(&signals), forcing_(std::move(forcing)),
+      offset_(Eigen::VectorXd::Zero(static_cast<Eigen::Index>(config.state_count()))),
+      u_(Eigen::VectorXd::Zero(static_cast<Eigen::Index>(config.system.input_count()))) {}
 
-const Eigen::VectorXd& StateEquation::inputs(double t, double x) {
-  u_[0] = x + offset_;
+const Eigen::VectorXd& StateEquation::inputs(double t, const double* x) {
+  const auto n = static_cast<Eigen::Index>(size());
+  for (Eigen::Index k = 0; k < n; ++k)
+    u_[k] = config_->modes[static_cast<std::size_t>(k)] == PortMode::port ? x[k] + offset_[k] : 0.0;
   const std::vector<double>* only = forcing_.only.empty() ? nullptr : &forcing_.only;
+  const Eigen::Index first = config_->first_source();
   for (std::size_t k = 0; k < signals_->size(); ++k) {
     double v = k < forcing_.levels.size() ? forcing_.levels[k] : 0.0;
     if (forcing_.sinusoids) v += (*signals_)[k].sinusoids_at(t, only);
-    u_[static_cast<Eigen::Index>(k + 1)] = v;
+    u_[first + static_cast<Eigen::Index>(k)] = v;
   }
   return u_;
 }
 
-double StateEquation::rate(double t, double x) {
+void StateEquation::rate(double t, const double* x, double* rate) {
   const Eigen::VectorXd& u = inputs(t, x);
-  return evaluate(config_->port, config_->unknowns(u), u) / storage_value_;
+  const Eigen::VectorXd xs = config_->unknowns(u);
+  for (std::size_t k = 0; k < size(); ++k)
+    rate[k] = config_->modes[k] == PortMode::port ? evaluate(config_->ports[k], xs, u) / config_->values[k] : 0.0;
 }
 
-std::vector<double> sensitivities(const Configuration& config, double storage_value) {
-  const auto n = static_cast<Eigen::Index>(config.system.input_count());
-  std::vector<double> d(static_cast<std::size_t>(n), 0.0);
-  for (Eigen::Index j = 0; j < n; ++j) {
-    const Eigen::VectorXd u = Eigen::VectorXd::Unit(n, j);
-    d[static_cast<std::size_t>(j)] = evaluate(config.port, config.unknowns(u), u) / storage_value;
-  }
-  return d;
-}
-
-double forcing_scale(const std::vector<double>& d, const std::vector<double>& levels,
-                     const std::vector<SourceSignal>& signals, double span) {
-  const double a = std::fabs(d.at(0));
-  const double slow = span > 0.0 ? 1.0 / span : 0.0;
-  double x = 0.0;
+std::vector<double> forcing_scale(const Configuration& config, const std::vector<double>& levels,
+                                  const std::vector<SourceSignal>& signals, double span) {
+  const auto n = static_cast<Eigen::Index>(config.state_count());
+  std::vector<double> x(static_cast<std::size_t>(n), 0.0);
+  if (n == 0) return x;
+  const double sigma = span > 0.0 ? 1.0 / span : 1.0;
+  const Eigen::MatrixXcd a = config.a.cast<std::complex<double>>();
+  // |(s − A)⁻¹·b·term| per state, added term by term.
+  auto add = [&](std::complex<double> s, const Eigen::VectorXd& b, double term) {
+    if (term == 0.0 || b.isZero()) return;
+    const Eigen::MatrixXcd m = s * Eigen::MatrixXcd::Identity(n, n) - a;
+    const Eigen::VectorXcd y = Eigen::FullPivLU<Eigen::MatrixXcd>(m).solve(b.cast<std::complex<double>>());
+    for (Eigen::Index j = 0; j < n; ++j) x[static_cast<std::size_t>(j)] += std::abs(y[j]) * term;
+  };
   for (std::size_t k = 0; k < signals.size(); ++k) {
-    const double b = std::fabs(d.at(k + 1));
-    if (b == 0.0) continue;
-    const double rate = std::max(a, slow);
-    if (rate > 0.0) x += b * std::fabs(levels.at(k)) / rate;
-    for (const auto& s : signals[k].waveform->sinusoids) {
-      double r = std::max(rate, kTwoPi * s.frequency);
-      if (r > 0.0) x += b * std::fabs(s.amplitude) * signals[k].inv_scale / r;
-    }
+    const Eigen::VectorXd b = config.b.col(static_cast<Eigen::Index>(k));
+    add(sigma, b, std::fabs(levels.at(k)));
+    for (const auto& s : signals[k].waveform->sinusoids)
+      add(std::complex<double>(sigma, kTwoPi * s.frequency), b, std::fabs(s.amplitude) * signals[k].inv_scale);
   }
-  return std::isfinite(x) ? x : 0.0;
+  for (double& v : x)
+    if (!std::isfinite(v)) v = 0.0;
+  return x;
 }
 
 }  // namespace netfold::integration

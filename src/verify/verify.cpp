@@ -13,6 +13,15 @@ namespace netfold {
 
 double integrator_rtol_for(double rtol) { return std::clamp(rtol * 1e-4, kTightestIntegratorRtol, 1e-6); }
 
+Schedule numerical_schedule(const Solution& solution) {
+  return build_schedule(apply_scenario(solution.circuit(), solution.options().scenario), solution.window());
+}
+
+NumericalRun integrate_inputs(const Solution& solution, const IntegrateOptions& options) {
+  return integrate_network(solution.circuit(), numerical_schedule(solution), solution.options().scenario,
+                           solution.observables(), options);
+}
+
 namespace {
 
 // N_y for each observable, from the numerical run alone (see the file comment of verify.hpp):
@@ -48,18 +57,21 @@ std::vector<double> normalize(const std::vector<Observable>& observables, const 
   return n;
 }
 
-// κ = max_y |∂y/∂x|·max|x| / N_y, from the numerical run alone: the factor by which a relative
+// κ = max_y Σ_j |∂y/∂x_j|·max|x_j| / N_y, from the numerical run alone: the factor by which a relative
 // error of the state grows in the observables. It is ≫ 1 where an observable is a small
 // difference of large terms (the capacitor current of a stiff RC that tracks its source, ωτ ≪ 1),
 // and then CVODE's tolerance, set for the state, must be tighter by as much.
 double amplification(const std::vector<Observable>& observables, const NumericalRun& run,
                      const std::vector<double>& n, std::string& which) {
-  if (run.state.empty()) return 1.0;
-  double x_max = 0.0;
-  for (double x : run.state) x_max = std::max(x_max, std::fabs(x));
+  if (run.states.empty()) return 1.0;
+  std::vector<double> x_max(run.states.size(), 0.0);
+  for (std::size_t j = 0; j < run.states.size(); ++j)
+    for (double x : run.states[j]) x_max[j] = std::max(x_max[j], std::fabs(x));
   double kappa = 1.0;
   for (std::size_t i = 0; i < observables.size(); ++i) {
-    double k = run.state_gain[i] * x_max / n[i];
+    double k = 0.0;
+    for (std::size_t j = 0; j < x_max.size(); ++j) k += run.state_gain[i][j] * x_max[j];
+    k /= n[i];
     if (std::isfinite(k) && k > kappa) {
       kappa = k;
       which = observables[i].text;
@@ -78,8 +90,20 @@ struct Comparison {
   std::string not_finite;  // the first non-finite closed-form value, "" when none
 };
 
-Comparison compare(const std::vector<Observable>& observables, const std::vector<std::vector<Piece>>& closed,
+// The closed form's segment that holds t on the side the numerical sample is on: a sample that
+// ends its segment of `schedule` (the value just before an event) takes the closed segment
+// that ends there, any other the one that holds t (an event time belongs to the segment it
+// starts). Read by time, not by index, so that the two schedules need not agree.
+std::size_t closed_segment(const std::vector<Segment>& segs, const Schedule& schedule, std::uint32_t j, double t) {
+  const bool before = j + 1 < schedule.segments.size() && t >= schedule.segments[j].to;
+  const auto it = std::partition_point(segs.begin(), segs.end(),
+                                       [&](const Segment& s) { return before ? s.to < t : s.to <= t; });
+  return it == segs.end() ? segs.size() - 1 : static_cast<std::size_t>(it - segs.begin());
+}
+
+Comparison compare(const Solution& solution, const Schedule& schedule, const std::vector<std::vector<Piece>>& closed,
                    const NumericalRun& run) {
+  const auto& observables = solution.observables();
   Comparison out;
   out.normalization = normalize(observables, run);
   for (std::size_t i = 0; i < observables.size(); ++i) {
@@ -88,7 +112,8 @@ Comparison compare(const std::vector<Observable>& observables, const std::vector
     e.dimension = observables[i].dimension();
     for (std::size_t k = 0; k < run.times.size(); ++k) {
       const double t = run.times[k];
-      const double yc = closed[i].at(run.segment_of[k]).value(t);
+      const double yc =
+          closed[i].at(closed_segment(solution.segments(), schedule, run.segment_of[k], t)).value(t);
       const double yn = run.values[i][k];
       if (!std::isfinite(yc)) {
         if (out.not_finite.empty())
@@ -127,8 +152,9 @@ bool passes(const Comparison& c, const NumericalRun& run, double rtol) {
 // could reach a tenth of the threshold, the run is repeated with CVODE's tolerance tightened so
 // that it cannot, and the tighter run decides. A run that passes needs no second look: two
 // independent methods agree.
-void retry_tighter(const Solution& solution, const VerifyOptions& options, const std::vector<std::vector<Piece>>& closed,
-                   VerifyReport& report, Comparison& cmp, IntegrationStats& stats) {
+void retry_tighter(const Solution& solution, const Schedule& schedule, const VerifyOptions& options,
+                   const std::vector<std::vector<Piece>>& closed, VerifyReport& report, Comparison& cmp,
+                   IntegrationStats& stats) {
   const auto& observables = solution.observables();
   std::string which;
   const double kappa = amplification(observables, report.numerical, cmp.normalization, which);
@@ -142,11 +168,12 @@ void retry_tighter(const Solution& solution, const VerifyOptions& options, const
                                  "gave {:.2g}: integrated again with rtol {:.0e}",
                                  which, kappa, irtol, cmp.max_rel_error, tighter);
   if (left > 0) {
-    NumericalRun again = integrate_network(solution, IntegrateOptions{tighter, 0.0, left});
+    NumericalRun again = integrate_network(solution.circuit(), schedule, solution.options().scenario, observables,
+                                           IntegrateOptions{tighter, 0.0, left});
     stats.add(again.stats);
     if (again.status == IntegrationStatus::ok) {
       report.numerical = std::move(again);
-      cmp = compare(observables, closed, report.numerical);
+      cmp = compare(solution, schedule, closed, report.numerical);
     } else {
       note += fmt::format(", which did not finish ({}); the first run's comparison stands", again.message);
     }
@@ -188,13 +215,16 @@ VerifyReport verify_closed_form(const Solution& solution, const VerifyOptions& o
   std::vector<std::vector<Piece>> closed;
   for (const auto& obs : observables) closed.push_back(solution.pieces(obs));
 
-  // 2. The numerical run, compared at its instants; 3. again, tighter, where needed.
+  // 2. The numerical run on its own schedule (the scenario as given, the closed form's window),
+  // compared at its instants; 3. again, tighter, where needed.
+  const Schedule schedule = numerical_schedule(solution);
   const bool automatic = !(options.integrator_rtol > 0.0);
   const double irtol = automatic ? integrator_rtol_for(options.rtol) : options.integrator_rtol;
-  report.numerical = integrate_network(solution, IntegrateOptions{irtol, 0.0, options.max_steps});
+  report.numerical = integrate_network(solution.circuit(), schedule, solution.options().scenario, observables,
+                                       IntegrateOptions{irtol, 0.0, options.max_steps});
   IntegrationStats stats = report.numerical.stats;
-  Comparison cmp = compare(observables, closed, report.numerical);
-  if (automatic) retry_tighter(solution, options, closed, report, cmp, stats);
+  Comparison cmp = compare(solution, schedule, closed, report.numerical);
+  if (automatic) retry_tighter(solution, schedule, options, closed, report, cmp, stats);
 
   const NumericalRun& run = report.numerical;
   report.integrator_rtol = run.rtol;
