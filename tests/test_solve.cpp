@@ -309,7 +309,7 @@ namespace {
 // The full network, solved densely on its own: the port quantity (i_C or v_L) at time t for
 // state x. It shares only the MNA stamps with the engine, not its factorization or reduction.
 double port_quantity_by_dense_solve(const Circuit& c, const Segment& seg, double t, double x) {
-  NodalSystem sys = build_nodal_system(c, seg.positions, {seg.mode, std::nullopt});
+  NodalSystem sys = build_nodal_system(c, seg.positions, {seg.mode, std::nullopt, {}});
   Eigen::MatrixXd g(sys.matrix());
   Eigen::VectorXd u = input_values(c, independent_sources(c), t, x);
   Eigen::VectorXd xs = Eigen::FullPivLU<Eigen::MatrixXd>(g).solve(sys.right_hand_side(u));

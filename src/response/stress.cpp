@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <complex>
+#include <memory>
 #include <numbers>
 #include <stdexcept>
 #include <vector>
@@ -10,6 +11,7 @@
 #include <fmt/format.h>
 
 #include "netfold/diagnostics.hpp"
+#include "response/terms.hpp"
 
 namespace netfold {
 
@@ -27,10 +29,44 @@ constexpr double kMaxRmsPoints = 2e7;
 // periodic steady state the integral is constant and its derivative is noise.
 constexpr double kRmsDeadBand = 1e-9;
 
-double fastest(const Wave& w) {
+// The fastest frequency (Hz) of a one-factor piece and the decay rates (1/s, < 0) of its
+// transients, for the grid of the rms search.
+double fastest(const Piece& p) {
+  if (p.terms_f) return p.terms_f->fastest_angular_frequency() / kTwoPi;
   double f = 0.0;
-  for (const auto& p : w.phasors) f = std::max(f, p.frequency);
+  for (const auto& ph : p.f.phasors) f = std::max(f, ph.frequency);
   return f;
+}
+
+std::vector<double> decay_rates(const Piece& p) {
+  if (!p.terms_f) return {p.f.a};
+  std::vector<double> rates;
+  for (const auto& t : p.terms_f->terms) rates.push_back(t.z.real());
+  return rates;
+}
+
+// d/dt of a term response: d/ds [c·s^k·e^{z·s}·φ(d, s)] = c·(k·s^{k−1} + z·s^k)·e^{z·s}·φ +
+// c·s^k·e^{z·s}·e^{d·s}, with e^{d·s} = 1 + d·φ(d, s); phasors times jω, the constant gone.
+response::Response derivative_of_terms(const response::Response& y) {
+  response::Response d;
+  d.t0 = y.t0;
+  d.t1 = y.t1;
+  d.local = y.local;
+  for (const auto& p : y.periodic.phasors) {
+    const std::complex<double> v = p.value * std::complex<double>(0.0, kTwoPi * p.frequency);
+    if (v != std::complex<double>(0.0, 0.0)) d.periodic.phasors.push_back({p.frequency, v});
+  }
+  for (const auto& t : y.terms) {
+    if (t.k > 0) d.add_term({t.c * static_cast<double>(t.k), t.z, t.k - 1, t.has_phi, t.d});
+    if (t.has_phi) {
+      d.add_term({t.c * (t.z + t.d), t.z, t.k, true, t.d});
+      d.add_term({t.c, t.z, t.k, false, {}});
+    } else {
+      d.add_term({t.c * t.z, t.z, t.k, false, {}});
+    }
+  }
+  d.normalise();
+  return d;
 }
 
 void require_single_wave(const Observable& observable, const char* what) {
@@ -49,7 +85,7 @@ double integral_of_square(const std::vector<Piece>& pieces, double from, double 
   double sum = 0.0;
   for (const auto& p : pieces) {
     const double a = std::max(from, p.t0()), b = std::min(to, p.t1());
-    if (a < b) sum += integral_of_product(p.f, p.f, a, b);
+    if (a < b) sum += integral_of_product(p, p, a, b);
   }
   return std::max(sum, 0.0);
 }
@@ -63,7 +99,7 @@ void rms_maxima_between(const Piece& p, const Piece& q, double period, double b0
     return yq * yq - yp * yp;
   };
   const double span = b1 - b0;
-  const double f_max = std::max(fastest(p.f), fastest(q.f));
+  const double f_max = std::max(fastest(p), fastest(q));
   const double wanted = std::ceil(span * 2.0 * f_max * kPointsPerPeriod);
   if (wanted > kMaxRmsPoints)
     throw NumericError(fmt::format("the rms search would need {:.3g} points to follow the fastest sinusoid "
@@ -73,7 +109,9 @@ void rms_maxima_between(const Piece& p, const Piece& q, double period, double b0
   std::vector<double> ts;
   ts.reserve(n + 1);
   for (std::size_t k = 0; k <= n; ++k) ts.push_back(k == n ? b1 : b0 + span * static_cast<double>(k) / static_cast<double>(n));
-  for (double a : {p.f.a, q.f.a}) {
+  std::vector<double> rates = decay_rates(p);
+  for (double r : decay_rates(q)) rates.push_back(r);
+  for (double a : rates) {
     if (a >= 0.0 || -1.0 / a >= span) continue;
     for (int k = 1; k <= 240; ++k) {
       const double t = b0 + (-1.0 / a) * k / 8.0;
@@ -143,8 +181,10 @@ Wave derivative_of(const Wave& w) {
 }
 
 Piece derivative_of(const Piece& piece) {
-  if (piece.g) throw std::invalid_argument("the derivative of a product piece (a power) is not a single wave");
-  return Piece{derivative_of(piece.f), std::nullopt};
+  if (piece.is_product()) throw std::invalid_argument("the derivative of a product piece (a power) is not a single wave");
+  Piece d{derivative_of(piece.f), std::nullopt};
+  if (piece.terms_f) d.terms_f = std::make_shared<const response::Response>(derivative_of_terms(*piece.terms_f));
+  return d;
 }
 
 RateFigure largest_rate(const Solution& solution, const Observable& observable) {
