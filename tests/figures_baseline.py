@@ -28,6 +28,12 @@ COMMANDS = {
 REL = 1e-12
 
 # (file glob, command, JSON path glob) -> why the figure changed on purpose.
+# Baseline files removed on purpose, each with its reason.
+REMOVED_FILES = {
+    "tests/degenerate/two_storage_elements.nf": "issue 14: two storage elements are solved now; the "
+    "catalogue case became tests/degenerate/parallel_capacitors.nf (a capacitor loop, still refused)",
+}
+
 INTENDED_CHANGES = {
     # Issue 12 item 5: prefixed values convert exactly (470 nF is now the double nearest
     # 4.7e-7, not 470 × 1e-9), which moves the last bits of every figure. Where several
@@ -231,6 +237,8 @@ def main():
     for f in sorted(set(baseline) | set(figures)):
         if f not in baseline:
             # A file added after the baseline: nothing to compare against.
+            continue
+        if f not in figures and f in REMOVED_FILES:
             continue
         if f not in figures:
             print(f"FAIL {f}: in the baseline but no longer in the repository")

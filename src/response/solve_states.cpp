@@ -138,14 +138,17 @@ SteadyStart steady_start(const StateSpace& ss, const std::vector<Drive>& u, cons
   std::vector<ElementId> storages;
   for (ElementId id : p.elements)
     if (is_storage(el[id].kind)) storages.push_back(id);
+  std::sort(storages.begin(), storages.end());
   if (p.kind == TopologyProblem::Kind::capacitor_loop) {
     const ElementId first = storages.front();
+    std::vector<ElementId> loop = p.elements;
+    std::sort(loop.begin(), loop.end());  // file order reads naturally
     fail(c, el[first].loc,
-         fmt::format("{} form a loop with no resistance in {} ({}): the capacitor voltages around it cannot "
-                     "change independently, and where they differ when the loop closes the current is an "
-                     "impulse; add the series resistance that is really there (ESR, wiring, the source's "
-                     "internal resistance) to one of them",
-                     names_of(c, p.elements), where, names_of(c, storages)));
+         fmt::format("{} form a loop with no resistance in {}: the capacitor voltages around it cannot change "
+                     "independently (dependent states, which this build does not reduce), and where they differ "
+                     "when the loop closes the current is an impulse; add the series resistance that is really "
+                     "there (ESR, wiring, the source's internal resistance) to one of them",
+                     names_of(c, loop), where));
   }
   if (p.kind == TopologyProblem::Kind::inductor_open) {
     std::vector<std::string> carrying;
