@@ -137,6 +137,7 @@ INTENDED_CHANGES = {
     ("*.nf", "worst", "/json/sweeps/*/results/*/distribution"):
         "new field: the peak's distribution over the sweep (p50, p90, p99)",
     ("*.nf", "worst", "/json/sweeps/*/exceeded_share"): "new field: each rating's exceeded share of the sweep",
+    ("*.nf", "solve", "/json/storage_elements"): "new field (spec v2): every storage element, beside 'storage'",
     # Issue 12 item 4: a phase sweep of a source with harmonics is a time shift.
     ("netlists/harmonic_supply.nf", "worst", "/json/*"):
         "supply.phase moves the 150 Hz and 250 Hz terms by 3x and 5x the angle (a time shift): worst "

@@ -84,11 +84,31 @@ std::string solve_json(const SolveReport& report) {
   } else {
     j["storage"] = nullptr;
   }
+  // Spec v2: every storage element (one entry for one), beside "storage".
+  auto storages = nlohmann::json::array();
+  for (ElementId id : sol.storage_elements()) {
+    const Element& st = c.element(id);
+    storages.push_back({{"name", st.name},
+                        {"kind", std::string(kind_keyword(st.kind))},
+                        {"value", detail::json_number(st.value)},
+                        {"unit", st.kind == ElementKind::capacitor ? "F" : "H"}});
+  }
+  j["storage_elements"] = storages;
   j["window"] = {{"from", detail::json_number(sol.window().from)}, {"to", detail::json_number(sol.window().to)}};
   j["resolution"] = detail::json_number(sol.resolution());
   static const char* kSources[] = {"attribute", "option", "steady_state", "undetermined", "none"};
-  j["initial_state"] = {{"value", detail::json_number(sol.initial_state())},
-                        {"source", kSources[static_cast<int>(sol.initial_source())]}};
+  if (sol.several_states()) {
+    nlohmann::json values = nlohmann::json::object(), sources = nlohmann::json::object();
+    for (std::size_t k = 0; k < sol.storage_elements().size(); ++k) {
+      const std::string& name = c.element(sol.storage_elements()[k]).name;
+      values[name] = detail::json_number(sol.initial_states()[k]);
+      sources[name] = kSources[static_cast<int>(sol.initial_sources()[k])];
+    }
+    j["initial_state"] = {{"value", values}, {"source", sources}};
+  } else {
+    j["initial_state"] = {{"value", detail::json_number(sol.initial_state())},
+                          {"source", kSources[static_cast<int>(sol.initial_source())]}};
+  }
   auto segs = nlohmann::json::array();
   for (const auto& s : sol.segments()) {
     nlohmann::json js{{"number", s.number},
@@ -113,6 +133,26 @@ std::string solve_json(const SolveReport& report) {
       js["isc_phasors"] = nullptr;
     }
     js["unstable"] = s.unstable();
+    if (sol.several_states()) {
+      // No single Thevenin equivalent: the states by name and the natural modes instead.
+      js["rth"] = nullptr;
+      nlohmann::json start = nlohmann::json::object();
+      for (std::size_t k = 0; k < sol.storage_elements().size() && k < s.states_start.size(); ++k)
+        start[c.element(sol.storage_elements()[k]).name] = detail::json_number(s.states_start[k]);
+      js["state_start"] = start;
+      auto modes = nlohmann::json::array();
+      for (const NaturalMode& m : s.modes) {
+        if (m.oscillatory)
+          modes.push_back({{"kind", "oscillatory"},
+                           {"frequency", detail::json_number(m.frequency)},
+                           {"natural_frequency", detail::json_number(m.natural_frequency)},
+                           {"damping", detail::json_number(m.damping)},
+                           {"tau", detail::json_number(m.tau)}});
+        else
+          modes.push_back({{"kind", "real"}, {"tau", detail::json_number(m.tau)}});
+      }
+      js["modes"] = modes;
+    }
     segs.push_back(js);
   }
   j["segments"] = segs;

@@ -5,10 +5,12 @@
 
 #include <fmt/format.h>
 #include <fmt/ostream.h>
+#include <fmt/ranges.h>
 
 #include "netfold/report.hpp"
 #include "netfold/units.hpp"
 #include "response/forced_response.hpp"
+#include "response/terms.hpp"
 
 namespace netfold {
 
@@ -120,6 +122,50 @@ std::string segment_heading(const Circuit& c, const Segment& s) {
                      changes.empty() ? "" : " — at start: ", changes, positions.empty() ? "" : " — ", positions);
 }
 
+// A sum of modal terms (several storage elements), with t' = t − t0 of the segment: a real
+// rate as e^(−t'/τ), a complex one as e^(−t'/τ)·cos(ω·t' + φ), powers of t' and the φ factor of
+// a drift or a resonance as written; the DC and phasor parts as drive_text writes them.
+std::string terms_expression(const response::Response& r, std::string_view unit) {
+  std::string out = drive_text(r.periodic, unit);
+  // Terms that are rounding beside the others over the segment are not written.
+  const double span = r.t1 - r.t0;
+  auto size = [&](const response::Term& t) {
+    return std::abs(t.c) * std::pow(span, t.k) * std::max(1.0, std::exp(t.z.real() * span)) * (t.has_phi ? span : 1.0);
+  };
+  double total = std::fabs(r.periodic.dc);
+  for (const auto& p : r.periodic.phasors) total += std::abs(p.value);
+  for (const auto& t : r.terms) total += size(t);
+  for (const auto& t : r.terms) {
+    if (size(t) <= 1e-12 * total) continue;
+    const double decay = t.z.real();
+    std::string shape = decay == 0.0 ? "" : fmt::format("·e^(−t'/{})", si(-1.0 / decay, "s"));
+    if (decay > 0.0) shape = fmt::format("·e^(t'/{})", si(1.0 / decay, "s"));
+    if (t.k > 0) shape += t.k == 1 ? "·t'" : fmt::format("·t'^{}", t.k);
+    if (t.has_phi) shape += fmt::format("·φ({:.4g}{:+.4g}j 1/s, t')", t.d.real(), t.d.imag());
+    if (t.z.imag() != 0.0) {
+      out += fmt::format(" + {}{}·cos({}·t' {} {:.4g}°)", si(std::abs(t.c), unit), shape,
+                         si(t.z.imag() / (2.0 * std::numbers::pi), "Hz·2π"), std::arg(t.c) < 0 ? "−" : "+",
+                         std::fabs(std::arg(t.c)) * 180.0 / std::numbers::pi);
+    } else {
+      out += fmt::format(" {} {}{}", t.c.real() < 0 ? "−" : "+", si(std::fabs(t.c.real()), unit), shape);
+    }
+  }
+  return out;
+}
+
+void write_modes(std::ostream& out, const Segment& s) {
+  std::vector<std::string> parts;
+  for (const NaturalMode& m : s.modes) {
+    const std::string tau = std::isinf(m.tau) ? std::string("∞") : si(m.tau, "s");
+    if (m.oscillatory)
+      parts.push_back(fmt::format("oscillatory f_d = {}, f_n = {}, ζ = {:.4g}, τ = {}", si(m.frequency, "Hz"),
+                                  si(m.natural_frequency, "Hz"), m.damping, tau));
+    else
+      parts.push_back(fmt::format("real τ = {}{}", tau, m.multiplicity > 1 ? fmt::format(" (×{})", m.multiplicity) : ""));
+  }
+  fmt::print(out, "  natural modes (slowest first): {}\n", parts.empty() ? "none" : fmt::format("{}", fmt::join(parts, "; ")));
+}
+
 void write_state_lines(std::ostream& out, const Solution& sol, const Segment& s) {
   const Circuit& c = sol.circuit();
   const Element& st = c.element(sol.storage());
@@ -168,6 +214,18 @@ void write_solve_text(std::ostream& out, const SolveReport& report) {
                si(st.value, st.kind == ElementKind::capacitor ? "F" : "H"), st.loc.line);
     fmt::print(out, "state at t = 0-: {} = {} ({})\n", state_symbol(st), si(sol.initial_state(), state_unit(st)),
                initial_source_text(sol.initial_source()));
+  } else if (sol.several_states()) {
+    std::vector<std::string> list, states;
+    for (std::size_t k = 0; k < sol.storage_elements().size(); ++k) {
+      const Element& st = c.element(sol.storage_elements()[k]);
+      list.push_back(fmt::format("{} ({} {}, line {})", st.name, kind_keyword(st.kind),
+                                 si(st.value, st.kind == ElementKind::capacitor ? "F" : "H"), st.loc.line));
+      states.push_back(fmt::format("{}.{} = {} ({})", st.name, st.kind == ElementKind::capacitor ? "v" : "i",
+                                   si(sol.initial_states()[k], state_unit(st)),
+                                   initial_source_text(sol.initial_sources()[k])));
+    }
+    fmt::print(out, "storage elements: {}\n", fmt::join(list, ", "));
+    fmt::print(out, "state at t = 0-: {}\n", fmt::join(states, ", "));
   } else {
     fmt::print(out, "storage element: none (purely resistive circuit)\n");
   }
@@ -178,10 +236,17 @@ void write_solve_text(std::ostream& out, const SolveReport& report) {
   for (const auto& s : sol.segments()) {
     fmt::print(out, "\n{}\n", segment_heading(c, s));
     if (sol.storage() != kNone) write_state_lines(out, sol, s);
+    if (sol.several_states()) write_modes(out, s);
     for (const auto& obs : sol.observables()) {
       Piece p = sol.piece(obs, s);
       std::string unit(dimension_symbol(obs.dimension()));
-      if (p.g) {
+      if (p.has_terms()) {
+        if (p.terms_g)
+          fmt::print(out, "  {}(t) = [{}]·[{}]\n", obs.text, terms_expression(*p.terms_f, "V"),
+                     terms_expression(*p.terms_g, "A"));
+        else
+          fmt::print(out, "  {}(t) = {}\n", obs.text, terms_expression(*p.terms_f, unit));
+      } else if (p.g) {
         fmt::print(out, "  {}(t) = [{}]·[{}]\n", obs.text, wave_expression(p.f, "V"), wave_expression(*p.g, "A"));
       } else {
         fmt::print(out, "  {}(t) = {}\n", obs.text, wave_expression(p.f, unit));
