@@ -10,6 +10,7 @@
 #include "netfold/mna.hpp"
 #include "netfold/reduce.hpp"
 #include "netfold/units.hpp"
+#include "response/modal.hpp"
 
 namespace netfold {
 
@@ -24,8 +25,33 @@ PortEquivalent hold_state(PortEquivalent eq) {
   return eq;
 }
 
+// The drive of an input combination k at the port. With several storage elements each state is
+// held at its value at `at` (a constant share), the sources start at input n; with one, the
+// state's share is added by hold_state and Solution::drive_of reads the sources.
+Drive port_drive(const Solution& sol, const std::vector<double>& k, const Segment& seg, double at) {
+  if (!sol.several_states()) return sol.drive_of(k, seg);
+  const std::size_t n = sol.storage_elements().size();
+  const Eigen::VectorXd x = seg.modal->value(at);
+  Drive d;
+  for (std::size_t i = 0; i < n; ++i) d.dc += k.at(i) * x(static_cast<Eigen::Index>(i));
+  for (std::size_t j = 0; j < sol.sources().size(); ++j) {
+    const double coef = k.at(n + j);
+    if (coef == 0.0) continue;
+    const Waveform& w = sol.applied().waveform(sol.sources()[j]);
+    d.dc += coef * w.level_at(seg.from);
+    for (const auto& sn : w.sinusoids) d.add_phasor(sn.frequency, coef * std::polar(sn.amplitude, sn.phase));
+  }
+  return d;
+}
+
+// The state's coefficient for hold_state: none with several (port_drive holds them already).
+double state_share(const Solution& sol, const std::vector<double>& k) { return sol.several_states() ? 0.0 : k[0]; }
+
 // The storage element's own terminals: the segment's equivalent as solved.
 PortEquivalent at_storage(const Solution& sol, PortEquivalent eq) {
+  if (sol.several_states())
+    throw argument_error("equiv", "the circuit has several storage elements, so there is no single equivalent at "
+                                  "one of them; name a port with --port A,B");
   if (sol.storage() == kNone)
     throw argument_error("equiv", "the circuit has no capacitor or inductor; name a port with --port A,B");
   const Segment& seg = *eq.segment;
@@ -58,8 +84,8 @@ PortEquivalent open_voltage(const Solution& sol, PortEquivalent eq) {
   const Segment& seg = *eq.segment;
   const NodalSystem& plain = sol.network(seg).system();
   std::vector<double> kv = sol.network(seg).coefficients(plain.node_difference(eq.node_a, eq.node_b));
-  eq.voc = sol.drive_of(kv, seg);
-  eq.state_coefficient = kv[0];
+  eq.voc = port_drive(sol, kv, seg, eq.at);
+  eq.state_coefficient = state_share(sol, kv);
   return eq;
 }
 
@@ -73,9 +99,12 @@ PortEquivalent between_nodes(const Solution& sol, PortEquivalent eq, std::pair<N
   eq.node_b = b;
   eq.port = c.nodes()[a] + "," + c.nodes()[b];
   check_port(sol, seg, a, b);
-  eq.state_value = seg.state.value(eq.at);
+  eq.state_value = sol.several_states() ? 0.0 : seg.state.value(eq.at);
   BuildOptions options;
   options.mode = seg.mode;
+  // The same storage modes as the segment's network (an inductor held at zero stays so).
+  for (std::size_t i = 0; i < sol.storage_elements().size(); ++i)
+    options.port_modes.push_back(sol.network(seg).system().port_mode(i));
   options.test_port = port;
   ReducedNetwork tested(c, seg.positions, options);
   bool shorted = false;
@@ -102,17 +131,17 @@ PortEquivalent between_nodes(const Solution& sol, PortEquivalent eq, std::pair<N
     if (!driven) return hold_state(open_voltage(sol, eq));  // i_sc = 0
     // Current sources push into an open port: its voltage is unbounded, a short's current is not.
     eq.voc_defined = false;
-    eq.isc = sol.drive_of(k, seg);
-    eq.isc_state_coefficient = k[0];
+    eq.isc = port_drive(sol, k, seg, eq.at);
+    eq.isc_state_coefficient = state_share(sol, k);
     return hold_state(eq);
   }
-  eq.isc = sol.drive_of(k, seg);
-  eq.isc_state_coefficient = k[0];
+  eq.isc = port_drive(sol, k, seg, eq.at);
+  eq.isc_state_coefficient = state_share(sol, k);
   eq.rth = -1.0 / ktt;
   std::vector<double> kv = k;
   for (double& v : kv) v = -v / ktt;
-  eq.voc = sol.drive_of(kv, seg);
-  eq.state_coefficient = kv[0];
+  eq.voc = port_drive(sol, kv, seg, eq.at);
+  eq.state_coefficient = state_share(sol, kv);
   return hold_state(eq);
 }
 
