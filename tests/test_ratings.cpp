@@ -9,6 +9,7 @@
 #include <sstream>
 
 #include <fmt/format.h>
+#include <nlohmann/json.hpp>
 
 #include "amend_helpers.hpp"
 #include "engine_helpers.hpp"
@@ -311,4 +312,43 @@ TEST_CASE("issue 17: an exceeded v2 rating is a failed case in check, with the r
   CHECK_FALSE(v.ratings[0].passed);
   CHECK(v.ratings[0].text == "C1 dv/dt");
   CHECK_THAT(v.ratings[0].message, Catch::Contains("computed 3.25 V/µs > rated 1 V/µs"));
+}
+
+TEST_CASE("issue 17: v2 ratings read from a file reach the verdict of every command and the JSON in SI", "[ratings]") {
+  // source: textbook RC switched on at the crest from 0 V: dv/dt(0+) = V̂/(R·C) = 3.25e6 V/s and
+  // di/dt(0+) = −V̂/(R²·C) = −3.25e5 A/s (the current decays from V̂/R with τ = R·C).
+  const std::string base =
+      "supply: voltage-source s -> gnd, cosine 325 V 50 Hz\nK1: switch s -> a, closes at 0 s, rated 40 A, "
+      "rated-didt 1 A/us\nR1: resistor a -> b, 10 ohm, rated-i2t 1 A2s\nC1: capacitor b -> gnd, 10 uF, initial 0 V, "
+      "rated-dvdt {} V/us, rated-rms 10 A\nwindow 0 .. 60 ms\n";
+  TempDir dir("ratings_v2");
+  const auto exceeded = dir.path() / "exceeded.nf";
+  const auto within = dir.path() / "within.nf";
+  write_file(exceeded, fmt::format(fmt::runtime(base), 1));
+  write_file(within, fmt::format(fmt::runtime(base), 5));
+  for (const char* command : {"solve", "worst", "verify", "check"}) {
+    Run bad = run_netfold(fmt::format("{} '{}'", command, exceeded.string()), dir);
+    Run good = run_netfold(fmt::format("{} '{}'", command, within.string()), dir);
+    INFO(command << ":\n" << bad.out << "\n" << good.out);
+    CHECK(bad.status == 1);
+    CHECK(good.status == 0);
+    CHECK_THAT(bad.out, Catch::Contains("V/µs"));
+  }
+  Run json = run_netfold(fmt::format("solve '{}' --json - --no-verify", within.string()), dir);
+  INFO(json.out);
+  const auto j = nlohmann::json::parse(json.out);
+  bool dvdt = false, didt = false;
+  for (const auto& r : j.at("ratings")) {
+    if (r.at("quantity") == "dv/dt") {
+      dvdt = true;
+      CHECK_REL(r.at("actual").get<double>(), 325.0 / (10.0 * 10e-6), 1e-9);
+      CHECK_REL(r.at("rated").get<double>(), 5e6, 1e-12);
+    }
+    if (r.at("quantity") == "di/dt") {
+      didt = true;
+      CHECK_REL(r.at("actual").get<double>(), 325.0 / (100.0 * 10e-6), 1e-9);
+    }
+  }
+  CHECK(dvdt);
+  CHECK(didt);
 }
