@@ -9,7 +9,7 @@ ground N
 mains:    voltage-source L -> N, cosine 230 Vrms 50 Hz phase 0 deg   # closing at the crest: worst inrush
 K1:       switch L -> a, closes at 0 s, rated 2 A                      # the wall switch
 R_inrush: resistor a -> b, 100 ohm, rated 0.5 W, pulse-rated 1 J      # about 0.09 W in steady state
-C1:       capacitor b -> c, 470 nF, rated 400 V                        # X2 class, 275 Vac
+C1:       capacitor b -> c, 470 nF, rated 400 V, rated-dvdt 200 V/us   # X2 class, 275 Vac; pulse rating assumed for the example
 R_bleed:  resistor b -> c, 1 Mohm, rated 0.25 W
 R_led:    resistor c -> N, 3.3 kohm
 

@@ -5,7 +5,7 @@ title "RC snubber across a DC contact"
 
 bus:     voltage-source p -> gnd, dc 48 V
 R_load:  resistor p -> k, 24 ohm, rated 150 W                  # 48 V² / 24 ohm = 96 W while on
-K1:      switch k -> gnd, opens at 1 ms, closes at 5 ms, rated 5 A
+K1:      switch k -> gnd, opens at 1 ms, closes at 5 ms, rated 5 A, rated 250 V   # 250 V across the open contact: a common relay rating
 R_s:     resistor k -> s, 100 ohm, pulse-rated 1 J
 C_s:     capacitor s -> gnd, 100 nF, rated 100 V
 

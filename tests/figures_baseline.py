@@ -137,6 +137,11 @@ INTENDED_CHANGES = {
     ("*.nf", "worst", "/json/sweeps/*/results/*/distribution"):
         "new field: the peak's distribution over the sweep (p50, p90, p99)",
     ("*.nf", "worst", "/json/sweeps/*/exceeded_share"): "new field: each rating's exceeded share of the sweep",
+    # Issue 17: the example library's parts carry the v2 ratings they would have (an X
+    # capacitor's dv/dt, the voltage across an open relay contact): one more rating each.
+    ("netlists/night_light_dropper.nf", "*", "/json/ratings"): "issue 17: C1 rated-dvdt added",
+    ("netlists/night_light_dropper.nf", "worst", "/json/sweeps/0/ratings"): "issue 17: C1 rated-dvdt added",
+    ("netlists/snubber_contact.nf", "*", "/json/ratings"): "issue 17: K1 rated V added",
     ("*.nf", "solve", "/json/storage_elements"): "new field (spec v2): every storage element, beside 'storage'",
     # Issue 12 item 4: a phase sweep of a source with harmonics is a time shift.
     ("netlists/harmonic_supply.nf", "worst", "/json/*"):
