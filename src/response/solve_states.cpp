@@ -167,6 +167,20 @@ SteadyStart steady_start(const StateSpace& ss, const std::vector<Drive>& u, cons
   report_problem(s.applied(), p, where, storages.empty() ? kNone : storages.front(), 0.0, from);
 }
 
+// Inductors that are together the only connection of a part of the circuit carry dependent
+// currents (two in series carry one current): this build does not reduce them.
+[[noreturn]] void report_dependent_inductors(const Solution& s, const TopologyProblem& p, const std::string& where) {
+  const Circuit& c = s.circuit();
+  std::vector<ElementId> ids = p.elements;
+  std::sort(ids.begin(), ids.end());
+  fail(c, c.element(ids.front()).loc,
+       fmt::format("{} are together the only connection of node{} {} in {}: their currents are not independent "
+                   "(in series they carry one current), which this build does not reduce; combine inductors in "
+                   "series into one, or give the node a resistance to the reference (a winding's capacitance or "
+                   "leakage)",
+                   names_of(c, ids), p.nodes.size() > 1 ? "s" : "", node_names(c, p.nodes), where));
+}
+
 }  // namespace
 
 void StateSolver::solve_segments(Solution& s) {
@@ -186,7 +200,9 @@ void StateSolver::solve_segments(Solution& s) {
     // Inductors whose loop is open before t = 0 start at 0 A, held there (as with one).
     std::vector<PortMode> pre_modes(states.size(), PortMode::port);
     for (const auto& p : s.cache_->get(pre.positions, pre_modes).system().problems())
-      if (p.kind == TopologyProblem::Kind::inductor_open)
+      // One inductor alone in the cut: held at 0 A. Several: their currents are dependent (in
+      // series they carry one current), which holding them at zero would falsify.
+      if (p.kind == TopologyProblem::Kind::inductor_open && p.elements.size() == 1)
         for (ElementId id : p.elements)
           pre_modes[static_cast<std::size_t>(std::find(states.begin(), states.end(), id) - states.begin())] =
               PortMode::held_at_zero;
@@ -246,6 +262,7 @@ void StateSolver::solve_segments(Solution& s) {
     const ReducedNetwork* net = &s.cache_->get(seg.positions, modes);
     for (const auto& p : net->system().problems()) {
       if (p.kind != TopologyProblem::Kind::inductor_open) report_states_problem(s, p, where, x, seg.from);
+      if (p.elements.size() > 1) report_dependent_inductors(s, p, where);
       for (ElementId id : p.elements) {
         const auto i = static_cast<std::size_t>(std::find(states.begin(), states.end(), id) - states.begin());
         if (std::fabs(x(static_cast<Eigen::Index>(i))) > kZeroState * scale) report_states_problem(s, p, where, x, seg.from);
