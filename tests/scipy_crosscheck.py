@@ -571,9 +571,71 @@ window 0 s .. 40 ms
             + f"; verify {'passed' if out.get('passed') else 'failed'}: {out.get('message')}")
 
 
+def check_three_state_filter(netfold, directory):
+    # A 3-state filter on a 50 Hz sine: R1-L1-C1, then R2-C2 with the load R3. The state
+    # equations, derived by hand with x = (i_L1, v_C1, v_C2), all zero at t = 0- (`initial`):
+    #   L1·di/dt  = vs - R1·i - v1
+    #   C1·dv1/dt = i - (v1 - v2)/R2
+    #   C2·dv2/dt = (v1 - v2)/R2 - v2/R3
+    # integrated by solve_ivp (Radau, rtol 1e-12; source: SciPy) sample to sample, never
+    # interpolated, and compared with `netfold solve --csv` column by column.
+    Vp, f, R1, L1, C1, R2, C2, R3 = 100.0, 50.0, 2.0, 10e-3, 100e-6, 10.0, 47e-6, 100.0
+    w = TWO_PI * f
+    netlist = """
+V1: voltage-source a -> gnd, sine 100 V 50 Hz
+K1: switch a -> b, closes at 0 s
+R1: resistor b -> c, 2 ohm
+L1: inductor c -> m, 10 mH, initial 0 A
+C1: capacitor m -> gnd, 100 uF, initial 0 V
+R2: resistor m -> out, 10 ohm
+C2: capacitor out -> gnd, 47 uF, initial 0 V
+R3: resistor out -> gnd, 100 ohm
+watch L1.i, C1.v, C2.v, R2.i
+window 0 s .. 60 ms
+resolution 200 us
+"""
+    path = os.path.join(directory, "three_state_filter.nf")
+    with open(path, "w", encoding="utf-8") as fh:
+        fh.write(netlist.lstrip())
+    proc = subprocess.run([netfold, "solve", path, "--csv", "-", "--no-verify"], capture_output=True, text=True)
+    if proc.returncode not in (0, 1) or not proc.stdout.startswith("t,"):
+        raise RuntimeError(f"netfold solve exited {proc.returncode}: {proc.stderr.strip() or proc.stdout[:200]}")
+    rows = list(csv.reader(io.StringIO(proc.stdout)))
+    header = rows[0][1:]
+    data = np.array([[float(v) for v in r] for r in rows[1:] if r], dtype=float)
+    times = data[:, 0]
+    a = np.array([[-R1 / L1, -1 / L1, 0.0],
+                  [1 / C1, -1 / (R2 * C1), 1 / (R2 * C1)],
+                  [0.0, 1 / (R2 * C2), -(1 / R2 + 1 / R3) / C2]])
+
+    def rhs(t, x):
+        return a @ x + np.array([Vp * math.sin(w * t) / L1, 0.0, 0.0])
+    x, t0 = np.zeros(3), 0.0
+    states = np.empty((len(times), 3))
+    for k, t1 in enumerate(times):
+        if t1 > t0:
+            sol = solve_ivp(rhs, (t0, t1), x, method="Radau", rtol=RTOL_RADAU, atol=1e-12,
+                            jac=lambda tt, y: a)
+            if not sol.success:
+                raise RuntimeError(f"solve_ivp failed at t = {sol.t[-1]}: {sol.message}")
+            x, t0 = sol.y[:, -1], t1
+        states[k] = x
+    reference = {"L1.i": states[:, 0], "C1.v": states[:, 1], "C2.v": states[:, 2],
+                 "R2.i": (states[:, 1] - states[:, 2]) / R2}
+    errors = {}
+    for name, ref in reference.items():
+        if name not in header:
+            raise RuntimeError(f"netfold's CSV lacks {name} (columns: {', '.join(header)})")
+        got = data[:, header.index(name) + 1]
+        errors[name] = float(np.max(np.abs(got - ref))) / float(np.max(np.abs(got)))
+    passed = all(e <= RTOL_PASS for e in errors.values())
+    return ("three_state_filter", passed,
+            "max rel error " + ", ".join(f"{n} {e:.2g}" for n, e in errors.items()) + f" ({len(times)} samples)")
+
+
 def extra_checks():
     return [check_sine_phase_sweep, check_harmonic_phase_sweep, check_resistor_power_rating,
-            check_norton_port_current, check_periodic_steady_state]
+            check_norton_port_current, check_periodic_steady_state, check_three_state_filter]
 
 
 def run_netfold(netfold, case, directory):
