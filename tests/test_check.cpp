@@ -389,6 +389,8 @@ TEST_CASE("the circuit library covers every element kind, waveform kind, claim k
     INFO("claim quantity " << q);
     CHECK(quantities.count(static_cast<ClaimQuantity>(q)) == 1);
   }
+  // (v2) share peak, from cap_bank_tolerance.nf.
+  CHECK(quantities.count(ClaimQuantity::share_peak) == 1);
   CHECK(ops.size() == 5);
   CHECK(sweeps.size() == 3);
   CHECK(dc);
