@@ -1167,7 +1167,7 @@ TEST_CASE("an unreadable file is an input error naming the file and the reason",
   CHECK_THROWS_AS(parse_netlist_file("tests/data/parse"), InputError);
 }
 
-// Every example circuit parses, and holds the one storage element the engine handles.
+// Every example circuit parses, and holds at least one storage element (a transient to study).
 TEST_CASE("every example netlist parses cleanly", "[parse]") {
   std::size_t count = 0;
   for (const auto& entry : std::filesystem::directory_iterator(NETFOLD_SOURCE_DIR "/netlists")) {
@@ -1176,7 +1176,7 @@ TEST_CASE("every example netlist parses cleanly", "[parse]") {
     INFO(entry.path().string());
     try {
       Circuit c = parse_netlist_file(entry.path());
-      CHECK(c.storage_elements().size() == 1);
+      CHECK(c.storage_elements().size() >= 1);
       CHECK_FALSE(c.title().empty());
       CHECK_FALSE(c.claims().empty());
     } catch (const InputError& e) {
