@@ -73,7 +73,8 @@ double slowest_tau(const std::vector<NaturalMode>& modes) {
 struct SteadyStart {
   Eigen::VectorXd x;
   std::vector<bool> undetermined;
-  std::string why;  // empty when every state is determined
+  std::string why;     // empty when every state is determined
+  bool exists = true;  // false when the network has no steady state at all
 };
 
 SteadyStart steady_start(const StateSpace& ss, const std::vector<Drive>& u, const std::vector<NaturalMode>& modes) {
@@ -83,6 +84,7 @@ SteadyStart steady_start(const StateSpace& ss, const std::vector<Drive>& u, cons
     out.x.setZero();
     out.undetermined.assign(static_cast<std::size_t>(n), true);
     out.why = std::move(why);
+    out.exists = false;
     return out;
   };
   if (std::any_of(modes.begin(), modes.end(), [](const NaturalMode& m) { return m.tau < 0.0; }))
@@ -193,7 +195,7 @@ void StateSolver::solve_segments(Solution& s) {
   Segment pre;
   pre.number = 0;  // "before t = 0" for the sources' levels
   pre.positions = positions_before_zero(c);
-  SteadyStart steady{Eigen::VectorXd::Zero(n), std::vector<bool>(states.size(), true), {}};
+  SteadyStart steady{Eigen::VectorXd::Zero(n), std::vector<bool>(states.size(), true), {}, false};
   bool all_given = true;
   for (ElementId id : states) all_given &= s.applied_.initial_state(id).has_value() || el[id].initial.has_value();
   if (!all_given) {
@@ -216,6 +218,13 @@ void StateSolver::solve_segments(Solution& s) {
       std::vector<NaturalMode> modes;
       for (const auto& m : response::modes_of(ss.a)) modes.push_back(natural_mode(m));
       steady = steady_start(ss, source_drives(s, pre), modes);
+      // An inductor held at zero before t = 0 (its loop open) is determined: 0 A.
+      if (steady.exists)
+        for (std::size_t k = 0; k < states.size(); ++k)
+          if (pre_modes[k] == PortMode::held_at_zero) {
+            steady.undetermined[k] = false;
+            steady.x(static_cast<Eigen::Index>(k)) = 0.0;
+          }
     }
   }
   s.initial_states_.assign(states.size(), 0.0);
