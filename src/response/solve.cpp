@@ -257,13 +257,7 @@ void SolveSteps::one_state(Solution& s) {
   double state = s.initial_state_;
   double state_scale = std::fabs(state);
   for (std::size_t k = 0; k < s.schedule_.segments.size(); ++k) {
-    const ScheduledSegment& planned = s.schedule_.segments[k];
-    Segment seg;
-    seg.number = static_cast<int>(k + 1);
-    seg.from = planned.from;
-    seg.to = planned.to;
-    seg.positions = planned.positions;
-    for (const auto& ev : planned.changes) seg.changes.push_back(event_text(c, ev));
+    Segment seg = scheduled_segment(c, s.schedule_.segments[k], k);
     seg.state_start = state;
     const std::string where = segment_text(c, seg);
 

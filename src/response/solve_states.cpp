@@ -257,13 +257,7 @@ void StateSolver::solve_segments(Solution& s) {
   Eigen::VectorXd x = Eigen::Map<const Eigen::VectorXd>(s.initial_states_.data(), n);
   double scale = x.cwiseAbs().maxCoeff();
   for (std::size_t k = 0; k < s.schedule_.segments.size(); ++k) {
-    const ScheduledSegment& planned = s.schedule_.segments[k];
-    Segment seg;
-    seg.number = static_cast<int>(k + 1);
-    seg.from = planned.from;
-    seg.to = planned.to;
-    seg.positions = planned.positions;
-    for (const auto& ev : planned.changes) seg.changes.push_back(event_text(c, ev));
+    Segment seg = scheduled_segment(c, s.schedule_.segments[k], k);
     const std::string where = segment_text(c, seg);
 
     // Inductors whose only path is open are held at zero where they carry none.

@@ -34,6 +34,16 @@ std::string segment_text(const Circuit& c, const Segment& s) {
                      pos.empty() ? "" : ", ", pos);
 }
 
+Segment scheduled_segment(const Circuit& c, const ScheduledSegment& planned, std::size_t k) {
+  Segment seg;
+  seg.number = static_cast<int>(k + 1);
+  seg.from = planned.from;
+  seg.to = planned.to;
+  seg.positions = planned.positions;
+  for (const auto& ev : planned.changes) seg.changes.push_back(event_text(c, ev));
+  return seg;
+}
+
 std::string names_of(const Circuit& c, const std::vector<ElementId>& ids) {
   std::string out;
   for (std::size_t i = 0; i < ids.size(); ++i) {

@@ -17,6 +17,8 @@ extern const double kMaxDefaultWindow;
 
 std::string positions_text(const Circuit& c, const SwitchPositions& p);
 std::string segment_text(const Circuit& c, const Segment& s);
+// The k-th (from 0) segment of the schedule, before any numerics: span, positions, changes.
+Segment scheduled_segment(const Circuit& c, const ScheduledSegment& planned, std::size_t k);
 std::string names_of(const Circuit& c, const std::vector<ElementId>& ids);
 std::string node_names(const Circuit& c, const std::vector<NodeId>& ids);
 [[noreturn]] void fail(const Circuit& c, SourceLoc loc, std::string message);
