@@ -12,6 +12,8 @@
 /// u: inputs — u[0 .. n−1] are the n storage elements' states in file order (capacitor voltage
 ///    in V, inductor current in A), u[n + k] the present value of the k-th independent source
 ///    (a circuit with no storage element keeps u[0] unused, so its sources start at u[1]);
+///    a circuit with diodes has one more input after the sources, the constant 1 (unit_input),
+///    which carries every conducting diode's forward drop or breakdown voltage;
 /// G: the nodal matrix (S and dimensionless entries); B: how each input enters.
 ///
 /// Every storage element is a port: a capacitor becomes a voltage source holding its state, an
@@ -31,12 +33,23 @@
 namespace netfold {
 
 /// Which switches are closed: one flag per switch, in the order of Circuit::elements().
-struct SwitchPositions {
-  std::vector<bool> closed;
-  bool operator==(const SwitchPositions& other) const { return closed == other.closed; }
+/// What a diode does in one configuration (spec v2, "State-dependent events").
+enum class DiodeState : std::uint8_t {
+  blocking,  ///< i = v/off, or 0 with the default open `off`
+  forward,   ///< conducting: v = forward + on·i
+  reverse,   ///< in breakdown: v = −breakdown + on·i (i < 0)
 };
 
-/// The switch positions before t = 0 (each switch opposite to its first event).
+/// The configuration of the switching parts: one flag per switch and one state per diode, each
+/// in the order of Circuit::elements().
+struct SwitchPositions {
+  std::vector<bool> closed;
+  std::vector<DiodeState> diodes;
+  bool operator==(const SwitchPositions& other) const { return closed == other.closed && diodes == other.diodes; }
+};
+
+/// The switch positions before t = 0 (each switch opposite to its first event; every diode
+/// blocking, the first guess of the configuration search).
 SwitchPositions positions_before_zero(const Circuit& circuit);
 
 /// The independent sources, in element order; input u[n + k] is sources[k]'s value (n the
@@ -131,6 +144,12 @@ class NodalSystem {
   LinearForm port_quantity(std::size_t k = 0) const;
   /// Current through the test port from its first node to its second (see BuildOptions).
   LinearForm test_port_current() const;
+  /// Index in u of the constant 1 that carries the diodes' drops (kNone without diodes).
+  std::uint32_t unit_input() const { return unit_input_; }
+  /// The state of diode `id` in this configuration.
+  DiodeState diode_state(ElementId id) const { return positions_.diodes.at(diode_index_[id]); }
+  /// The configuration this system was built for.
+  const SwitchPositions& positions() const { return positions_; }
   /// Index of the test port's input in u (kNone without a test port).
   std::uint32_t test_port_input() const { return test_input_; }
   /// True when G is symmetric positive definite (resistors and grounded ideal sources
@@ -156,11 +175,13 @@ class NodalSystem {
   SwitchPositions positions_;
   std::uint32_t input_count_ = 1;
   std::uint32_t test_input_ = kNone;
+  std::uint32_t unit_input_ = kNone;
   std::uint32_t test_branch_ = kNone;
   std::vector<std::uint32_t> node_unknown_;    ///< per node: index into x, or kNone (reference/pinned)
   std::vector<std::uint32_t> branch_unknown_;  ///< per element: index into x, or kNone
   std::vector<std::uint32_t> source_input_;    ///< per element: index into u, or kNone
   std::vector<std::uint32_t> switch_index_;    ///< per element: index into positions_, or kNone
+  std::vector<std::uint32_t> diode_index_;     ///< per element: index into positions_.diodes, or kNone
   std::vector<bool> floating_;
   std::vector<std::uint32_t> component_;
   std::uint32_t unknown_count_ = 0;

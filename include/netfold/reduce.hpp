@@ -104,13 +104,17 @@ class NetworkCache {
   // them (each segment keeps a pointer to its network afterwards; see Segment::network).
   struct Key {
     std::vector<bool> closed;
+    std::vector<DiodeState> diodes;
     std::vector<PortMode> modes;
-    bool operator==(const Key& other) const { return modes == other.modes && closed == other.closed; }
+    bool operator==(const Key& other) const {
+      return modes == other.modes && closed == other.closed && diodes == other.diodes;
+    }
   };
   struct KeyHash {
     std::size_t operator()(const Key& k) const {
       std::size_t h = std::hash<std::vector<bool>>{}(k.closed);
       for (PortMode m : k.modes) h = h * 31 + static_cast<std::size_t>(m);
+      for (DiodeState d : k.diodes) h = h * 7 + static_cast<std::size_t>(d);
       return h;
     }
   };

@@ -42,6 +42,9 @@ enum class EventKind : std::uint8_t {
   switch_closes,  ///< a switch closes
   switch_opens,   ///< a switch opens
   source_steps,   ///< a `step` of a source is taken (its level changes by ScheduledEvent::step)
+  diode_conducts,     ///< (v2) a diode's voltage reaches its forward drop: it starts conducting
+  diode_blocks,       ///< (v2) a conducting diode's current falls to zero: it blocks
+  diode_breaks_down,  ///< (v2) a blocking diode's voltage reaches −breakdown: it conducts in reverse
 };
 
 /// One event: at `time`, `element` does `kind`.
@@ -74,11 +77,15 @@ struct Schedule {
   /// Splits segment k at an event found while solving (see the file comment). `event.time`
   /// must lie strictly inside segment k; `after` is the configuration from then on.
   void split_segment(std::size_t k, const ScheduledEvent& event, const SwitchPositions& after);
+  /// An event found at the very start of segment k (a contact's zero at the instant it was
+  /// armed): segment k takes `after` and the change, carried on as split_segment does.
+  void change_at_start(std::size_t k, const ScheduledEvent& event, const SwitchPositions& after);
 };
 
-/// Every event of the circuit under the scenario, in time order (equal times in element
-/// order): each switch event, and each `step` at t > 0 (a step at or before 0 is part of the
-/// level that holds before t = 0).
+/// Every event of the circuit under the scenario known before solving, in time order (equal
+/// times in element order): each switch event at a time, and each `step` at t > 0 (a step at
+/// or before 0 is part of the level that holds before t = 0). A contact that acts at a current
+/// or voltage zero is not listed: the solver finds its time (Solution::schedule() then holds it).
 std::vector<ScheduledEvent> list_events(const AppliedScenario& applied);
 
 /// The switch positions at time t: before t = 0 each switch is opposite to its first event;

@@ -102,8 +102,14 @@ class Solution {
   ElementId storage() const { return storage_; }
   /// Every storage element, in state order (file order).
   const std::vector<ElementId>& storage_elements() const { return storages_; }
-  /// True with two or more storage elements: segments carry modes and a modal response.
+  /// True with two or more storage elements.
   bool several_states() const { return storages_.size() > 1; }
+  /// True where segments carry modes and a modal response (no Thevenin view of one storage
+  /// element): with several storage elements, and with state-dependent events (diodes,
+  /// contacts that act at a zero), whose configurations change while solving.
+  bool modal_path() const { return storages_.size() > 1 || event_driven_; }
+  /// True with diodes or contacts that act at a current or voltage zero.
+  bool event_driven() const { return event_driven_; }
   /// Several storage elements: each state at t = 0−, where each came from, and why the
   /// undetermined ones are (empty strings for the others).
   const std::vector<double>& initial_states() const { return initial_states_; }
@@ -157,6 +163,7 @@ class Solution {
   Schedule schedule_;
   ElementId storage_ = kNone;
   std::vector<ElementId> storages_;
+  bool event_driven_ = false;
   std::vector<double> initial_states_;
   std::vector<InitialStateSource> initial_sources_;
   std::vector<std::string> initial_notes_;

@@ -164,9 +164,9 @@ class ClaimEvaluator {
         if (m.oscillatory)
           return {claim.quantity == ClaimQuantity::frequency ? m.frequency : m.damping, {}, {}};
       return undefined(fmt::format("{} is undefined: segment {} has no oscillatory mode{}", name, claim.segment,
-                                   s_.several_states() ? "" : " (one storage element has a single real mode)"));
+                                   s_.modal_path() ? "" : " (one storage element has a single real mode)"));
     }
-    if (s_.several_states()) {
+    if (s_.modal_path()) {
       if (claim.quantity != ClaimQuantity::tau)
         return undefined(fmt::format("{} is undefined with several storage elements: there is no single Thevenin "
                                      "equivalent; claim tau, frequency or damping instead",

@@ -34,7 +34,7 @@ void take_events_until(const std::vector<ScheduledEvent>& events, std::size_t& n
                        const std::vector<std::uint32_t>& slot, SwitchPositions& p) {
   for (; next < events.size() && events[next].time <= t; ++next) {
     const ScheduledEvent& ev = events[next];
-    if (ev.kind == EventKind::source_steps) continue;
+    if (ev.kind != EventKind::switch_closes && ev.kind != EventKind::switch_opens) continue;
     p.closed[slot[ev.element]] = ev.kind == EventKind::switch_closes;
   }
 }
@@ -48,7 +48,8 @@ std::vector<ScheduledEvent> list_events(const AppliedScenario& applied) {
     const Element& e = c.element(i);
     if (e.kind == ElementKind::switch_)
       for (const auto& ev : applied.events(i))
-        events.push_back({ev.time, i, ev.closes ? EventKind::switch_closes : EventKind::switch_opens, 0.0});
+        if (ev.trigger == EventTrigger::time)
+          events.push_back({ev.time, i, ev.closes ? EventKind::switch_closes : EventKind::switch_opens, 0.0});
     if (is_independent_source(e.kind))
       for (const auto& st : applied.waveform(i).steps)
         if (st.time > 0.0) events.push_back({st.time, i, EventKind::source_steps, st.level});
@@ -116,14 +117,19 @@ std::size_t Schedule::segment_index_at(double t) const {
 void Schedule::split_segment(std::size_t k, const ScheduledEvent& event, const SwitchPositions& after) {
   if (k >= segments.size() || !(event.time > segments[k].from && event.time < segments[k].to))
     throw std::invalid_argument("split_segment: the event is not strictly inside the segment");
-  const SwitchPositions before = segments[k].positions;
   ScheduledSegment next;
   next.from = event.time;
   next.to = segments[k].to;
-  next.positions = after;
-  next.changes.push_back(event);
+  next.positions = segments[k].positions;
   segments[k].to = event.time;
   segments.insert(segments.begin() + static_cast<std::ptrdiff_t>(k) + 1, std::move(next));
+  change_at_start(k + 1, event, after);
+}
+
+void Schedule::change_at_start(std::size_t k, const ScheduledEvent& event, const SwitchPositions& after) {
+  const SwitchPositions before = segments.at(k).positions;
+  segments[k].positions = after;
+  segments[k].changes.push_back(event);
   auto at = std::upper_bound(events.begin(), events.end(), event.time,
                              [](double t, const ScheduledEvent& e) { return t < e.time; });
   events.insert(at, event);
@@ -131,9 +137,10 @@ void Schedule::split_segment(std::size_t k, const ScheduledEvent& event, const S
   // change of that switch.
   for (std::size_t slot = 0; slot < after.closed.size() && slot < before.closed.size(); ++slot) {
     if (after.closed[slot] == before.closed[slot]) continue;
-    for (std::size_t j = k + 2; j < segments.size(); ++j) {
+    for (std::size_t j = k + 1; j < segments.size(); ++j) {
       bool own = std::any_of(segments[j].changes.begin(), segments[j].changes.end(), [&](const ScheduledEvent& e) {
-        return slot < switches.size() && e.element == switches[slot] && e.kind != EventKind::source_steps;
+        return slot < switches.size() && e.element == switches[slot] &&
+               (e.kind == EventKind::switch_closes || e.kind == EventKind::switch_opens);
       });
       if (own) break;
       segments[j].positions.closed[slot] = after.closed[slot];
@@ -179,6 +186,9 @@ std::string event_text(const Circuit& c, const ScheduledEvent& ev) {
     case EventKind::switch_opens: return fmt::format("{} opens", e.name);
     case EventKind::source_steps:
       return fmt::format("{} steps by {}", e.name, format_si(ev.step, e.kind == ElementKind::voltage_source ? "V" : "A"));
+    case EventKind::diode_conducts: return fmt::format("{} starts conducting", e.name);
+    case EventKind::diode_blocks: return fmt::format("{} stops conducting (its current reaches zero)", e.name);
+    case EventKind::diode_breaks_down: return fmt::format("{} breaks down (conducts in reverse)", e.name);
   }
   return e.name;
 }

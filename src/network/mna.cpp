@@ -42,7 +42,7 @@ enum class Edge : std::uint8_t {
   current,     ///< fixes the current, not the voltage (current sources, vccs, cccs, inductor port)
 };
 
-Edge edge_of(const Element& e, bool is_port, PortMode mode, bool closed) {
+Edge edge_of(const Element& e, bool is_port, PortMode mode, bool closed, DiodeState diode) {
   switch (e.kind) {
     case ElementKind::resistor: return Edge::resistive;
     case ElementKind::capacitor: return is_port ? Edge::stiff : Edge::none;
@@ -58,7 +58,11 @@ Edge edge_of(const Element& e, bool is_port, PortMode mode, bool closed) {
     case ElementKind::switch_:
       if (closed) return e.r_on > 0.0 ? Edge::resistive : Edge::stiff;
       return std::isfinite(e.r_off) ? Edge::resistive : Edge::none;
-    case ElementKind::diode: return Edge::none;  // never built: solve() refuses diodes first
+    case ElementKind::diode:
+      // Conducting: a voltage branch (v = drop + on·i), stiff when `on` is 0 so that loops it
+      // closes are found; blocking: its `off` resistance, or open.
+      if (diode != DiodeState::blocking) return e.r_on > 0.0 ? Edge::soft : Edge::stiff;
+      return std::isfinite(e.r_off) ? Edge::resistive : Edge::none;
   }
   return Edge::none;
 }
@@ -69,6 +73,7 @@ SwitchPositions positions_before_zero(const Circuit& circuit) {
   SwitchPositions p;
   for (const auto& e : circuit.elements())
     if (e.kind == ElementKind::switch_) p.closed.push_back(e.closed_before_zero());
+    else if (e.kind == ElementKind::diode) p.diodes.push_back(DiodeState::blocking);
   return p;
 }
 
@@ -114,10 +119,17 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
   sys.source_input_.assign(n_elem, kNone);
   // With no storage element, input 0 is still reserved (for a state that is not there), so that
   // a resistive circuit's sources keep the first edition's numbering.
-  std::uint32_t n_switch = 0, n_input = static_cast<std::uint32_t>(std::max<std::size_t>(1, sys.states_.size()));
+  sys.diode_index_.assign(n_elem, kNone);
+  std::uint32_t n_switch = 0, n_diode = 0;
+  std::uint32_t n_input = static_cast<std::uint32_t>(std::max<std::size_t>(1, sys.states_.size()));
   for (ElementId i = 0; i < n_elem; ++i) {
     if (elements[i].kind == ElementKind::switch_) sys.switch_index_[i] = n_switch++;
+    if (elements[i].kind == ElementKind::diode) sys.diode_index_[i] = n_diode++;
     if (is_independent_source(elements[i].kind)) sys.source_input_[i] = n_input++;
+  }
+  if (n_diode > 0) {
+    if (positions.diodes.size() != n_diode) throw NumericError("a configuration without a state for every diode");
+    sys.unit_input_ = n_input++;
   }
   if (options.test_port) sys.test_input_ = n_input++;
   sys.input_count_ = n_input;
@@ -127,7 +139,8 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
   for (ElementId i = 0; i < n_elem; ++i) {
     const Element& e = elements[i];
     bool closed = e.kind == ElementKind::switch_ && positions.closed.at(sys.switch_index_[i]);
-    edges[i] = edge_of(e, sys.state_input_[i] != kNone, port_mode[i], closed);
+    const DiodeState diode = e.kind == ElementKind::diode ? positions.diodes[sys.diode_index_[i]] : DiodeState::blocking;
+    edges[i] = edge_of(e, sys.state_input_[i] != kNone, port_mode[i], closed, diode);
     if (e.sense_element != kNone) sensed[e.sense_element] = true;
   }
 
@@ -359,7 +372,9 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
     switch (edges[i]) {
       case Edge::none: break;
       case Edge::resistive: {
-        double r = e.kind == ElementKind::resistor ? e.value : (sys.switch_closed(i) ? e.r_on : e.r_off);
+        double r = e.kind == ElementKind::resistor ? e.value
+                   : e.kind == ElementKind::diode ? e.r_off
+                                                  : (sys.switch_closed(i) ? e.r_on : e.r_off);
         if (j == kNone) {
           double gv = 1.0 / r;
           add_voltage(rp, e.pos, e.neg, gv);
@@ -379,6 +394,11 @@ NodalSystem build_nodal_system(const Circuit& circuit, const SwitchPositions& po
         // An inductor held at zero current is a 0 V branch: nothing more to stamp.
         if (e.kind == ElementKind::vcvs) add_voltage(j, e.sense_pos, e.sense_neg, -e.value);
         if (e.kind == ElementKind::ccvs) add_form(j, sys.sensed_current(e.sense_element), -e.value);
+        if (e.kind == ElementKind::diode) {  // v(pos) − v(neg) − on·j = drop·1
+          add_g(j, j, -e.r_on);
+          const bool forward = sys.diode_state(i) == DiodeState::forward;
+          add_b(j, sys.unit_input_, forward ? e.forward : -*e.breakdown);
+        }
         break;
       }
       case Edge::current: {
@@ -562,6 +582,9 @@ LinearForm NodalSystem::element_current(ElementId id) const {
       if (!std::isfinite(r)) return LinearForm{};
       return scaled_voltage(1.0 / r);
     }
+    case ElementKind::diode:  // conducting: its branch unknown (above); blocking: its leak
+      if (!std::isfinite(e.r_off)) return LinearForm{};
+      return scaled_voltage(1.0 / e.r_off);
     case ElementKind::vccs: {
       LinearForm f = voltage_form(e.sense_pos, e.sense_neg, e.value);
       f.defined = component_[e.sense_pos] == component_[e.sense_neg];

@@ -29,7 +29,7 @@ PortEquivalent hold_state(PortEquivalent eq) {
 // held at its value at `at` (a constant share), the sources start at input n; with one, the
 // state's share is added by hold_state and Solution::drive_of reads the sources.
 Drive port_drive(const Solution& sol, const std::vector<double>& k, const Segment& seg, double at) {
-  if (!sol.several_states()) return sol.drive_of(k, seg);
+  if (!sol.modal_path()) return sol.drive_of(k, seg);
   const std::size_t n = sol.storage_elements().size();
   const Eigen::VectorXd x = seg.modal->value(at);
   Drive d;
@@ -41,15 +41,18 @@ Drive port_drive(const Solution& sol, const std::vector<double>& k, const Segmen
     d.dc += coef * w.level_at(seg.from);
     for (const auto& sn : w.sinusoids) d.add_phasor(sn.frequency, coef * std::polar(sn.amplitude, sn.phase));
   }
+  // The diodes' drops ride on the unit input (the constant 1) after the sources.
+  const std::uint32_t unit = seg.network ? seg.network->system().unit_input() : kNone;
+  if (unit != kNone) d.dc += k.at(unit);
   return d;
 }
 
 // The state's coefficient for hold_state: none with several (port_drive holds them already).
-double state_share(const Solution& sol, const std::vector<double>& k) { return sol.several_states() ? 0.0 : k[0]; }
+double state_share(const Solution& sol, const std::vector<double>& k) { return sol.modal_path() ? 0.0 : k[0]; }
 
 // The storage element's own terminals: the segment's equivalent as solved.
 PortEquivalent at_storage(const Solution& sol, PortEquivalent eq) {
-  if (sol.several_states())
+  if (sol.modal_path())
     throw argument_error("equiv", "the circuit has several storage elements, so there is no single equivalent at "
                                   "one of them; name a port with --port A,B");
   if (sol.storage() == kNone)
@@ -99,7 +102,7 @@ PortEquivalent between_nodes(const Solution& sol, PortEquivalent eq, std::pair<N
   eq.node_b = b;
   eq.port = c.nodes()[a] + "," + c.nodes()[b];
   check_port(sol, seg, a, b);
-  eq.state_value = sol.several_states() ? 0.0 : seg.state.value(eq.at);
+  eq.state_value = sol.modal_path() ? 0.0 : seg.state.value(eq.at);
   BuildOptions options;
   options.mode = seg.mode;
   // The same storage modes as the segment's network (an inductor held at zero stays so).

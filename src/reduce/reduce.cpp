@@ -172,7 +172,7 @@ const ReducedNetwork& NetworkCache::get(const SwitchPositions& positions, PortMo
 }
 
 const ReducedNetwork& NetworkCache::get(const SwitchPositions& positions, const std::vector<PortMode>& modes) {
-  auto [it, fresh] = networks_.try_emplace(Key{positions.closed, modes});
+  auto [it, fresh] = networks_.try_emplace(Key{positions.closed, positions.diodes, modes});
   if (fresh) {
     BuildOptions options;
     options.port_modes = modes;

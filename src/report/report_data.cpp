@@ -97,7 +97,7 @@ std::string solve_json(const SolveReport& report) {
   j["window"] = {{"from", detail::json_number(sol.window().from)}, {"to", detail::json_number(sol.window().to)}};
   j["resolution"] = detail::json_number(sol.resolution());
   static const char* kSources[] = {"attribute", "option", "steady_state", "undetermined", "none"};
-  if (sol.several_states()) {
+  if (sol.modal_path()) {
     nlohmann::json values = nlohmann::json::object(), sources = nlohmann::json::object();
     for (std::size_t k = 0; k < sol.storage_elements().size(); ++k) {
       const std::string& name = c.element(sol.storage_elements()[k]).name;
@@ -133,7 +133,7 @@ std::string solve_json(const SolveReport& report) {
       js["isc_phasors"] = nullptr;
     }
     js["unstable"] = s.unstable();
-    if (sol.several_states()) {
+    if (sol.modal_path()) {
       // No single Thevenin equivalent: the states by name and the natural modes instead.
       js["rth"] = nullptr;
       nlohmann::json start = nlohmann::json::object();

@@ -214,7 +214,7 @@ void write_solve_text(std::ostream& out, const SolveReport& report) {
                si(st.value, st.kind == ElementKind::capacitor ? "F" : "H"), st.loc.line);
     fmt::print(out, "state at t = 0-: {} = {} ({})\n", state_symbol(st), si(sol.initial_state(), state_unit(st)),
                initial_source_text(sol.initial_source()));
-  } else if (sol.several_states()) {
+  } else if (sol.modal_path()) {
     std::vector<std::string> list, states;
     for (std::size_t k = 0; k < sol.storage_elements().size(); ++k) {
       const Element& st = c.element(sol.storage_elements()[k]);
@@ -236,7 +236,7 @@ void write_solve_text(std::ostream& out, const SolveReport& report) {
   for (const auto& s : sol.segments()) {
     fmt::print(out, "\n{}\n", segment_heading(c, s));
     if (sol.storage() != kNone) write_state_lines(out, sol, s);
-    if (sol.several_states()) write_modes(out, s);
+    if (sol.modal_path()) write_modes(out, s);
     for (const auto& obs : sol.observables()) {
       Piece p = sol.piece(obs, s);
       std::string unit(dimension_symbol(obs.dimension()));

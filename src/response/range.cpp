@@ -75,7 +75,7 @@ bool defined_throughout(const Solution& s, const Observable& obs) {
 // coefficients: Σ_j m_j·U_j, U_0 the bound of the state's wave, U_{1+k} = `sources`[k].
 double form_bound(const Solution& s, const Segment& seg, const LinearForm& form, const std::vector<double>& sources) {
   const std::vector<double> m = s.network(seg).magnitudes(form);
-  if (s.several_states()) {
+  if (s.modal_path()) {
     // Several states: each state's own bound over the segment, then the sources from input n.
     const std::size_t n = s.storage_elements().size();
     double b = 0.0;

@@ -111,7 +111,7 @@ Piece Solution::piece(const Observable& obs, const Segment& seg) const {
 }
 
 Piece Solution::observable_piece(const ObservableForm& form, const Segment& segment) const {
-  if (several_states()) return StateSolver::piece(*this, form, segment);
+  if (modal_path()) return StateSolver::piece(*this, form, segment);
   Piece p{observable_wave(form.value, segment), std::nullopt};
   if (form.current) p.g = observable_wave(*form.current, segment);
   return p;
@@ -133,22 +133,6 @@ ObservableForm Solution::engine_form(const Observable& obs, const NodalSystem& s
 namespace {
 std::vector<std::string> ideal_break_cautions(const Solution& s);
 
-// Parts of the second edition that are read but not yet solved: refused at their line.
-void refuse_unsolved_parts(const Circuit& c) {
-  for (const Element& e : c.elements()) {
-    if (e.kind == ElementKind::diode)
-      fail(c, e.loc,
-           fmt::format("diode {}: this build of netfold reads diodes but does not solve circuits with them yet; "
-                       "model it by a switch with the conduction interval it has, or remove it",
-                       e.name));
-    for (const SwitchEvent& ev : e.events)
-      if (ev.trigger != EventTrigger::time)
-        fail(c, ev.loc,
-             fmt::format("{}: this build of netfold does not solve events at a current or voltage zero yet; give "
-                         "the time of the zero instead ('{} at T')",
-                         e.name, ev.closes ? "closes" : "opens"));
-  }
-}
 }  // namespace
 
 // The steps of a solve that need the Solution's members (a friend).
@@ -164,9 +148,9 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
   s.cache_ = cache ? std::move(cache) : std::make_shared<NetworkCache>(c);
   s.options_ = options;
   const auto& el = c.elements();
-  refuse_unsolved_parts(c);
   s.storages_ = c.storage_elements();
-  s.storage_ = s.storages_.size() == 1 ? s.storages_.front() : kNone;
+  s.event_driven_ = has_state_events(c);
+  s.storage_ = s.storages_.size() == 1 && !s.event_driven_ ? s.storages_.front() : kNone;
   s.sources_ = independent_sources(c);
   check_value_span(c);
 
@@ -182,7 +166,7 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
     const std::vector<ScheduledEvent> events = list_events(s.applied_);
     const double last_event = events.empty() ? 0.0 : events.back().time;
     const double states_tau =
-        s.several_states() ? StateSolver::last_slowest_tau(s.applied_, *s.cache_, last_event) : 0.0;
+        s.modal_path() ? StateSolver::last_slowest_tau(s.applied_, *s.cache_, last_event) : 0.0;
     s.window_ = default_window(s.applied_, *s.cache_, s.storage_, seams::engine_faults().tau_scale, s.warnings_,
                                states_tau);
   }
@@ -195,7 +179,7 @@ Solution solve(const Circuit& c, const SolveOptions& options, std::shared_ptr<Ne
                                       el[ev.element].name, format_si(ev.time, "s"), format_si(t_end, "s")));
 
   // The state at t = 0−, then the segments.
-  if (s.several_states()) {
+  if (s.modal_path()) {
     StateSolver::solve_segments(s);
   } else {
     SolveSteps::one_state(s);

@@ -28,18 +28,33 @@ constexpr double kZeroState = 1e-12;
 // A mode with |λ| below this share of ‖A‖ is a λ = 0 mode (a capacitor with no DC path).
 constexpr double kZeroEigenvalue = 1e-12;
 
-// Each source's waveform under the scenario as a Drive over the segment: its DC level (steps
-// taken by the segment's start; before t = 0 the level "for all t < 0") and its phasors.
-std::vector<Drive> source_drives(const Solution& s, const Segment& seg) {
+}  // namespace
+
+namespace detail {
+
+std::vector<Drive> input_drives(const Solution& s, bool before_zero, double from) {
   std::vector<Drive> out;
   for (ElementId id : s.sources()) {
     const Waveform& w = s.applied().waveform(id);
     Drive d;
-    d.dc = seg.number == 0 ? level_before_zero(w) : w.level_at(seg.from);
+    d.dc = before_zero ? level_before_zero(w) : w.level_at(from);
     for (const auto& sn : w.sinusoids) d.add_phasor(sn.frequency, std::polar(sn.amplitude, sn.phase));
     out.push_back(std::move(d));
   }
+  if (has_diodes(s.circuit())) out.push_back(Drive{1.0, {}});  // the unit input of the diodes' drops
   return out;
+}
+
+bool has_diodes(const Circuit& c) {
+  return std::any_of(c.elements().begin(), c.elements().end(),
+                     [](const Element& e) { return e.kind == ElementKind::diode; });
+}
+
+bool has_state_events(const Circuit& c) {
+  return has_diodes(c) || std::any_of(c.elements().begin(), c.elements().end(), [](const Element& e) {
+           return std::any_of(e.events.begin(), e.events.end(),
+                              [](const SwitchEvent& ev) { return ev.trigger != EventTrigger::time; });
+         });
 }
 
 NaturalMode natural_mode(const response::Mode& m) {
@@ -70,13 +85,6 @@ double slowest_tau(const std::vector<NaturalMode>& modes) {
 // inductor) take the least-squares choice, which starts a decoupled one from 0; a network with
 // no steady state at all (a growing mode, a DC source driving a λ = 0 mode, a source at a
 // lossless resonance) starts every state from 0.
-struct SteadyStart {
-  Eigen::VectorXd x;
-  std::vector<bool> undetermined;
-  std::string why;     // empty when every state is determined
-  bool exists = true;  // false when the network has no steady state at all
-};
-
 SteadyStart steady_start(const StateSpace& ss, const std::vector<Drive>& u, const std::vector<NaturalMode>& modes) {
   const Eigen::Index n = ss.a.rows();
   SteadyStart out{Eigen::VectorXd::Zero(n), std::vector<bool>(static_cast<std::size_t>(n), false), {}};
@@ -129,6 +137,10 @@ SteadyStart steady_start(const StateSpace& ss, const std::vector<Drive>& u, cons
   out.x = x;
   return out;
 }
+
+}  // namespace detail
+
+namespace {
 
 // Fails with a message in circuit terms for a structural problem of a segment with several
 // storage elements. Dependent states (a loop of capacitors and voltage sources, a cut set of
@@ -185,7 +197,10 @@ SteadyStart steady_start(const StateSpace& ss, const std::vector<Drive>& u, cons
 
 }  // namespace
 
-void StateSolver::solve_segments(Solution& s) {
+// The states at t = 0−: `initial` or the scenario where given, else the steady state before
+// t = 0 (with diodes, the consistent or periodic one: state_events.cpp). Returns the diodes'
+// states at t = 0−.
+std::vector<DiodeState> StateSolver::initial_states(Solution& s) {
   const Circuit& c = s.circuit();
   const auto& el = c.elements();
   const std::vector<ElementId>& states = s.storages_;
@@ -198,7 +213,12 @@ void StateSolver::solve_segments(Solution& s) {
   SteadyStart steady{Eigen::VectorXd::Zero(n), std::vector<bool>(states.size(), true), {}, false};
   bool all_given = true;
   for (ElementId id : states) all_given &= s.applied_.initial_state(id).has_value() || el[id].initial.has_value();
-  if (!all_given) {
+  std::vector<DiodeState> diodes = pre.positions.diodes;
+  if (has_diodes(c)) {
+    DiodeStart start = diode_start(s, all_given);
+    steady = std::move(start.steady);
+    diodes = std::move(start.diodes);
+  } else if (!all_given) {
     // Inductors whose loop is open before t = 0 start at 0 A, held there (as with one).
     std::vector<PortMode> pre_modes(states.size(), PortMode::port);
     for (const auto& p : s.cache_->get(pre.positions, pre_modes).system().problems())
@@ -217,7 +237,7 @@ void StateSolver::solve_segments(Solution& s) {
       const StateSpace ss = state_space(c, net);
       std::vector<NaturalMode> modes;
       for (const auto& m : response::modes_of(ss.a)) modes.push_back(natural_mode(m));
-      steady = steady_start(ss, source_drives(s, pre), modes);
+      steady = steady_start(ss, input_drives(s, true, 0.0), modes);
       // An inductor held at zero before t = 0 (its loop open) is determined: 0 A.
       if (steady.exists)
         for (std::size_t k = 0; k < states.size(); ++k)
@@ -254,61 +274,111 @@ void StateSolver::solve_segments(Solution& s) {
                                       undetermined.size() > 1 ? "are" : "is", undetermined.size() > 1 ? "" : "s"));
   s.initial_source_ = s.initial_sources_.front();
 
+  s.initial_source_ = s.initial_sources_.empty() ? InitialStateSource::none : s.initial_sources_.front();
+  return diodes;
+}
+
+// One segment in its configuration (seg.positions): the network, with inductors whose only
+// path is open held at zero where they carry none (x is set to 0 for them), and the modal
+// response from x over [seg.from, seg.to]. Fails in circuit terms for a structural problem.
+void StateSolver::solve_segment(Solution& s, Segment& seg, Eigen::VectorXd& x, double scale) {
+  const Circuit& c = s.circuit();
+  const std::vector<ElementId>& states = s.storages_;
+  const auto n = static_cast<Eigen::Index>(states.size());
+  const std::string where = segment_text(c, seg);
+  seg.modes.clear();
+  // Inductors whose only path is open are held at zero where they carry none.
+  std::vector<PortMode> modes(states.size(), PortMode::port);
+  const ReducedNetwork* net = &s.cache_->get(seg.positions, modes);
+  for (const auto& p : net->system().problems()) {
+    if (p.kind != TopologyProblem::Kind::inductor_open) report_states_problem(s, p, where, x, seg.from);
+    if (p.elements.size() > 1) report_dependent_inductors(s, p, where);
+    for (ElementId id : p.elements) {
+      const auto i = static_cast<std::size_t>(std::find(states.begin(), states.end(), id) - states.begin());
+      if (std::fabs(x(static_cast<Eigen::Index>(i))) > kZeroState * scale) report_states_problem(s, p, where, x, seg.from);
+      modes[i] = PortMode::held_at_zero;
+      x(static_cast<Eigen::Index>(i)) = 0.0;
+    }
+  }
+  if (std::find(modes.begin(), modes.end(), PortMode::held_at_zero) != modes.end()) {
+    net = &s.cache_->get(seg.positions, modes);
+    seg.mode = PortMode::held_at_zero;
+    for (const auto& p : net->system().problems()) report_states_problem(s, p, where, x, seg.from);
+  }
+  if (net->rcond() < kSingularRcond) report_singular(c, *net, where);
+  seg.rcond = net->rcond();
+  seg.solver = net->solver_name();
+  seg.network = net;
+  seg.voc_defined = seg.isc_defined = false;
+  seg.state_start = n > 0 ? x(0) : 0.0;
+  seg.states_start.assign(x.data(), x.data() + n);
+
+  StateSpace ss = state_space(c, *net);
+  ss.a /= seams::engine_faults().tau_scale;  // the test seam: every time constant × tau_scale
+  auto modal = std::make_shared<ModalResponse>(
+      response::solve_modal(ss.a, ss.b, x, input_drives(s, seg.number == 0, seg.from), seg.from, seg.to));
+  if (!modal->accuracy().ok)
+    fail(c, c.element(anchor_element(s)).loc,
+         fmt::format("the response of {} cannot be computed to an accuracy netfold can vouch for: {}; no figure "
+                     "is given (check for elements of nearly equal value that make modes nearly coincide, or "
+                     "values far apart)",
+                     where, modal->accuracy().reason));
+  for (const auto& m : modal->modes()) seg.modes.push_back(natural_mode(m));
+  seg.tau = slowest_tau(seg.modes);
+  seg.rate = std::isfinite(seg.tau) && seg.tau != 0.0 ? -1.0 / seg.tau : 0.0;
+  seg.modal = std::move(modal);
+  if (seg.unstable()) {
+    std::string warning = fmt::format("{} is unstable: a mode grows as e^(t/{}); a controlled source supplies more "
+                                      "than the network absorbs",
+                                      where, format_si(-seg.tau, "s"));
+    // A segment solved again after a state event cut it short says it once.
+    if (s.warnings_.empty() || s.warnings_.back() != warning) s.warnings_.push_back(std::move(warning));
+  }
+}
+
+void StateSolver::solve_segments(Solution& s) {
+  const Circuit& c = s.circuit();
+  const auto n = static_cast<Eigen::Index>(s.storages_.size());
+  std::vector<DiodeState> diodes = initial_states(s);
+  std::vector<ArmedEvent> armed = armed_events(s.applied_);
+  const bool event_driven = !diodes.empty() || !armed.empty();
+
   Eigen::VectorXd x = Eigen::Map<const Eigen::VectorXd>(s.initial_states_.data(), n);
-  double scale = x.cwiseAbs().maxCoeff();
+  double scale = n > 0 ? x.cwiseAbs().maxCoeff() : 0.0;
+  Chatter chatter;
   for (std::size_t k = 0; k < s.schedule_.segments.size(); ++k) {
     Segment seg = scheduled_segment(c, s.schedule_.segments[k], k);
-    const std::string where = segment_text(c, seg);
-
-    // Inductors whose only path is open are held at zero where they carry none.
-    std::vector<PortMode> modes(states.size(), PortMode::port);
-    const ReducedNetwork* net = &s.cache_->get(seg.positions, modes);
-    for (const auto& p : net->system().problems()) {
-      if (p.kind != TopologyProblem::Kind::inductor_open) report_states_problem(s, p, where, x, seg.from);
-      if (p.elements.size() > 1) report_dependent_inductors(s, p, where);
-      for (ElementId id : p.elements) {
-        const auto i = static_cast<std::size_t>(std::find(states.begin(), states.end(), id) - states.begin());
-        if (std::fabs(x(static_cast<Eigen::Index>(i))) > kZeroState * scale) report_states_problem(s, p, where, x, seg.from);
-        modes[i] = PortMode::held_at_zero;
-        x(static_cast<Eigen::Index>(i)) = 0.0;
+    seg.positions.diodes = diodes;
+    if (!diodes.empty()) settle_diodes(s, seg, x);
+    solve_segment(s, seg, x, scale);
+    if (event_driven) {
+      if (auto found = next_state_event(s, seg, armed)) {
+        SwitchPositions after = seg.positions;
+        if (found->switch_slot != kNone) after.closed[found->switch_slot] = !after.closed[found->switch_slot];
+        if (found->armed != kNone) armed[found->armed].done = true;
+        chatter.count(c, found->event, seg.from);
+        if (!(found->event.time > seg.from)) {
+          // A contact at its zero the instant it is armed: segment k changes at its start.
+          s.schedule_.change_at_start(k, found->event, after);
+          --k;
+          continue;
+        }
+        s.schedule_.split_segment(k, found->event, after);
+        seg.to = found->event.time;
+        Eigen::VectorXd start = Eigen::Map<const Eigen::VectorXd>(seg.states_start.data(), n);
+        solve_segment(s, seg, start, scale);
+        diodes = seg.positions.diodes;
+        if (found->diode_slot != kNone) diodes[found->diode_slot] = found->diode_after;
+      } else {
+        diodes = seg.positions.diodes;
       }
     }
-    if (std::find(modes.begin(), modes.end(), PortMode::held_at_zero) != modes.end()) {
-      net = &s.cache_->get(seg.positions, modes);
-      seg.mode = PortMode::held_at_zero;
-      for (const auto& p : net->system().problems()) report_states_problem(s, p, where, x, seg.from);
-    }
-    if (net->rcond() < kSingularRcond) report_singular(c, *net, where);
-    seg.rcond = net->rcond();
-    seg.solver = net->solver_name();
-    seg.network = net;
-    seg.voc_defined = seg.isc_defined = false;
-    seg.state_start = x(0);
-    seg.states_start.assign(x.data(), x.data() + n);
-
-    StateSpace ss = state_space(c, *net);
-    ss.a /= seams::engine_faults().tau_scale;  // the test seam: every time constant × tau_scale
-    auto modal = std::make_shared<ModalResponse>(
-        response::solve_modal(ss.a, ss.b, x, source_drives(s, seg), seg.from, seg.to));
-    if (!modal->accuracy().ok)
-      fail(c, el[states.front()].loc,
-           fmt::format("the response of {} cannot be computed to an accuracy netfold can vouch for: {}; no figure "
-                       "is given (check for elements of nearly equal value that make modes nearly coincide, or "
-                       "values far apart)",
-                       where, modal->accuracy().reason));
-    for (const auto& m : modal->modes()) seg.modes.push_back(natural_mode(m));
-    seg.tau = slowest_tau(seg.modes);
-    seg.rate = std::isfinite(seg.tau) && seg.tau != 0.0 ? -1.0 / seg.tau : 0.0;
-    if (seg.unstable())
-      s.warnings_.push_back(fmt::format("{} is unstable: a mode grows as e^(t/{}); a controlled source supplies more "
-                                        "than the network absorbs",
-                                        where, format_si(-seg.tau, "s")));
-    x = modal->value(seg.to);
+    x = seg.modal->value(seg.to);
     if (!x.allFinite())
-      fail(c, el[states.front()].loc,
-           fmt::format("the response grows beyond any representable value in {}; shorten the window", where));
-    scale = std::max(scale, x.cwiseAbs().maxCoeff());
-    seg.modal = std::move(modal);
+      fail(c, c.element(anchor_element(s)).loc,
+           fmt::format("the response grows beyond any representable value in {}; shorten the window",
+                       segment_text(c, seg)));
+    if (n > 0) scale = std::max(scale, x.cwiseAbs().maxCoeff());
     s.segments_.push_back(std::move(seg));
   }
 }
@@ -317,12 +387,13 @@ Piece StateSolver::piece(const Solution& s, const ObservableForm& form, const Se
   const ReducedNetwork& net = s.network(seg);
   const NodalSystem& sys = net.system();
   const auto n = static_cast<Eigen::Index>(sys.state_count());
-  const auto m = static_cast<Eigen::Index>(s.sources().size());
+  const auto m = static_cast<Eigen::Index>(sys.input_count() - sys.first_source_input() -
+                                           (sys.test_port_input() == kNone ? 0u : 1u));
   auto terms = [&](const LinearForm& f) {
     const std::vector<double> coef = net.coefficients(f);
     Eigen::RowVectorXd cx = Eigen::RowVectorXd::Zero(n), du = Eigen::RowVectorXd::Zero(m);
     for (Eigen::Index i = 0; i < n; ++i) cx(i) = coef[static_cast<std::size_t>(i)];
-    for (Eigen::Index j = 0; j < m; ++j) du(j) = coef[static_cast<std::size_t>(n + j)];
+    for (Eigen::Index j = 0; j < m; ++j) du(j) = coef[sys.first_source_input() + static_cast<std::size_t>(j)];
     auto r = std::make_shared<Response>(seg.modal->output(cx, du));
     return std::shared_ptr<const Response>(std::move(r));
   };

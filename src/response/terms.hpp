@@ -117,6 +117,16 @@ double integral_of_product(const Response& f, const Response& g, double from, do
 /// on the derivative to double precision. The end points count.
 Extremes find_extremes(const Response& y, double from, double to);
 
+/// The times find_extremes samples over [from, to] (from and to included): between two of
+/// them y has at most one extreme.
+std::vector<double> bracketing_grid(const Response& y, double from, double to);
+
+/// The first time in (from, to] at which y falls through `level`: y above it before, at or
+/// below it after, found to the last bit of t (terms_roots.cpp). A crossing counts when y
+/// leaves the band level ± tolerance on either side (rounding about the level at the start of
+/// a segment, where an event has just put y there, is no crossing). Nothing when y stays above.
+std::optional<double> first_fall(const Response& y, double level, double from, double to, double tolerance);
+
 /// The same for the product f·g (an instantaneous power).
 Extremes find_extremes_of_product(const Response& f, const Response& g, double from, double to);
 

@@ -142,6 +142,10 @@ Extremes scan(const Signal& sig, double from, double to) {
 
 Extremes find_extremes(const Response& y, double from, double to) { return scan(Signal{y}, from, to); }
 
+std::vector<double> bracketing_grid(const Response& y, double from, double to) {
+  return sample_times(Signal{y}, from, to);
+}
+
 Extremes find_extremes_of_product(const Response& f, const Response& g, double from, double to) {
   return scan(Signal{f, &g}, from, to);
 }
