@@ -82,15 +82,18 @@ void solve_cluster(const ModalBasis& basis, const Cluster& cl, const Eigen::Vect
     sum.particular[f].segment(b, p) = particular;
     w0 -= particular * forcings[f].phase;
   }
-  if (p == 1 && near.size() <= 1) {
+  if (p == 1) {
     const Complex lambda = tc(0, 0);
     add_term(terms, Term{1.0, lambda, 0, false, 0.0}, b, w0);
-    if (near.empty()) return;
-    const Forcing& f = forcings[near.front()];
-    // b·e^{zs}·φ(λ − z, s): the exact forced part of one mode near the forcing rate; a detuning
-    // below the eigenvalue's own rounding is exact resonance, b·s·e^{zs}.
-    const Complex detuning = std::abs(lambda - f.z) <= basis.rounding ? Complex(0.0) : lambda - f.z;
-    add_term(terms, Term{1.0, f.z, 0, true, detuning}, b, f.modal.segment(b, 1) * f.phase);
+    // b·e^{zs}·φ(λ − z, s) per near forcing: the exact forced part of one mode near each forcing
+    // rate (a scalar equation superposes them; a short segment can put DC and the supply's
+    // frequency both near one mode); a detuning below the eigenvalue's own rounding is exact
+    // resonance, b·s·e^{zs}.
+    for (std::size_t index : near) {
+      const Forcing& f = forcings[index];
+      const Complex detuning = std::abs(lambda - f.z) <= basis.rounding ? Complex(0.0) : lambda - f.z;
+      add_term(terms, Term{1.0, f.z, 0, true, detuning}, b, f.modal.segment(b, 1) * f.phase);
+    }
     return;
   }
   const Eigen::Index q = static_cast<Eigen::Index>(near.size());

@@ -349,7 +349,7 @@ void StateSolver::solve_segments(Solution& s) {
   for (std::size_t k = 0; k < s.schedule_.segments.size(); ++k) {
     Segment seg = scheduled_segment(c, s.schedule_.segments[k], k);
     seg.positions.diodes = diodes;
-    if (!diodes.empty()) settle_diodes(s, seg, x);
+    if (!diodes.empty()) settle_diodes(s, seg, x, scale);
     solve_segment(s, seg, x, scale);
     if (event_driven) {
       if (auto found = next_state_event(s, seg, armed)) {

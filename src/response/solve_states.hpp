@@ -95,7 +95,7 @@ class StateSolver {
   // State-dependent events (state_events.cpp).
   static std::vector<ArmedEvent> armed_events(const AppliedScenario& applied);
   static DiodeStart diode_start(Solution& s, bool all_given);
-  static void settle_diodes(Solution& s, Segment& seg, const Eigen::VectorXd& x);
+  static void settle_diodes(Solution& s, Segment& seg, const Eigen::VectorXd& x, double scale);
   static std::optional<FoundEvent> next_state_event(const Solution& s, const Segment& seg,
                                                     const std::vector<ArmedEvent>& armed);
   static ElementId anchor_element(const Solution& s);

@@ -202,11 +202,11 @@ std::optional<FoundEvent> first_diode_event(const Circuit& c, const ReducedNetwo
 // The network of a configuration for judging it: inductors whose only path is open held at
 // 0 A where they carry none; nullptr when it has any other structural problem or is singular.
 const ReducedNetwork* judged_network(NetworkCache& cache, const std::vector<ElementId>& states,
-                                     const SwitchPositions& p, const Eigen::VectorXd& x) {
+                                     const SwitchPositions& p, const Eigen::VectorXd& x, double scale) {
   std::vector<PortMode> modes(states.size(), PortMode::port);
   const ReducedNetwork* net = &cache.get(p, modes);
   bool held = false;
-  const double scale = x.size() > 0 ? x.cwiseAbs().maxCoeff() : 0.0;
+  if (x.size() > 0) scale = std::max(scale, x.cwiseAbs().maxCoeff());
   for (const auto& problem : net->system().problems()) {
     if (problem.kind != TopologyProblem::Kind::inductor_open || problem.elements.size() != 1) return nullptr;
     const auto i = static_cast<std::size_t>(std::find(states.begin(), states.end(), problem.elements.front()) -
@@ -237,15 +237,18 @@ using StatesOf = std::function<std::optional<Eigen::VectorXd>(const ReducedNetwo
 
 class ConfigurationSearch {
  public:
+  // `scale`: the largest state so far, below whose 1e-12 share an inductor counts as carrying
+  // nothing (it may then be held at zero where its path is open).
   ConfigurationSearch(const Solution& s, NetworkCache& cache, double t, bool before_zero, bool dc_only,
-                      StatesOf states_of)
-      : s_(s), cache_(cache), t_(t), dc_only_(dc_only), states_of_(std::move(states_of)),
+                      StatesOf states_of, double scale = 0.0)
+      : s_(s), cache_(cache), t_(t), dc_only_(dc_only), states_of_(std::move(states_of)), scale_(scale),
         ids_(diode_ids(s.circuit())), drives_(input_drives(s, before_zero, t)) {}
 
   // The consistent configuration nearest to `guess` (see the file comment), and its states.
   std::pair<SwitchPositions, Eigen::VectorXd> find(SwitchPositions guess, const std::string& where) {
+    where_ = where;
     std::set<std::vector<DiodeState>> seen;
-    Verdict last;
+    const SwitchPositions start = guess;
     SwitchPositions p = std::move(guess);
     for (std::size_t step = 0; step < 2 * ids_.size() + 4; ++step) {
       Eigen::VectorXd x;
@@ -256,6 +259,10 @@ class ConfigurationSearch {
       for (std::size_t k = 0; k < v.violated.size(); ++k) p.diodes[v.violated[k]] = v.to[k];
     }
     if (auto found = enumerate(p)) return *found;
+    // Every candidate failed for a reason of its own structure (a loop of capacitors and
+    // sources, a singular network) that does not depend on the diodes: the segment's own
+    // checks name it in circuit terms.
+    if (!any_valid_) return {start, Eigen::VectorXd()};
     fail_inconsistent(where);
   }
 
@@ -265,11 +272,15 @@ class ConfigurationSearch {
   double t_;
   bool dc_only_;
   StatesOf states_of_;
+  double scale_ = 0.0;
   std::vector<ElementId> ids_;
   std::vector<Drive> drives_;
   std::set<std::size_t> ever_violated_, ever_floating_;
+  bool any_valid_ = false;
+  std::string where_;
 
   void remember(const Verdict& v) {
+    any_valid_ |= v.valid;
     ever_violated_.insert(v.violated.begin(), v.violated.end());
     ever_floating_.insert(v.floating.begin(), v.floating.end());
   }
@@ -278,7 +289,7 @@ class ConfigurationSearch {
     Verdict v;
     const std::vector<ElementId>& states = s_.storage_elements();
     Eigen::VectorXd x_probe = Eigen::VectorXd::Zero(static_cast<Eigen::Index>(states.size()));
-    const ReducedNetwork* net = judged_network(cache_, states, p, x_probe);
+    const ReducedNetwork* net = judged_network(cache_, states, p, x_probe, scale_);
     if (!net) {
       v.valid = false;
       return v;
@@ -290,7 +301,7 @@ class ConfigurationSearch {
       return v;
     }
     x = *xs;
-    if (judged_network(cache_, states, p, x) != net) {
+    if (judged_network(cache_, states, p, x, scale_) != net) {
       v.valid = false;  // an inductor held at zero here carries current: not this configuration
       return v;
     }
@@ -302,10 +313,11 @@ class ConfigurationSearch {
         const LinearForm form = cond.current ? sys.element_current(ids_[slot]) : sys.element_voltage(ids_[slot]);
         const Quantity q = evaluate(*net, ss, form, x, u);
         if (!q.defined) {
+          // A blocking diode with an open `off` that leaves part of the circuit floating: the
+          // spec's error, at once (no configuration reached from here can be judged either).
           v.floating.push_back(slot);
-          v.violated.push_back(slot);
-          v.to.push_back(DiodeState::forward);
-          break;
+          ever_floating_.insert(slot);
+          fail_inconsistent(where_);
         }
         const double margin = cond.sign * q.value - cond.level;
         const double tolerance = kEdge * (q.size + std::fabs(cond.level));
@@ -354,7 +366,7 @@ class ConfigurationSearch {
       Eigen::VectorXd x;
       Verdict v = judge(p, x);
       if (v.valid && v.violated.empty()) return std::make_pair(p, x);
-      ever_floating_.insert(v.floating.begin(), v.floating.end());
+      remember(v);
     }
     return std::nullopt;
   }
@@ -445,11 +457,11 @@ std::vector<ArmedEvent> StateSolver::armed_events(const AppliedScenario& applied
   return out;
 }
 
-void StateSolver::settle_diodes(Solution& s, Segment& seg, const Eigen::VectorXd& x) {
+void StateSolver::settle_diodes(Solution& s, Segment& seg, const Eigen::VectorXd& x, double scale) {
   const Circuit& c = s.circuit();
   const std::vector<DiodeState> before = seg.positions.diodes;
   ConfigurationSearch search(s, *s.cache_, seg.from, seg.number == 0, false,
-                             [&](const ReducedNetwork&, const StateSpace&) { return std::optional(x); });
+                             [&](const ReducedNetwork&, const StateSpace&) { return std::optional(x); }, scale);
   seg.positions = search.find(seg.positions, fmt::format("at {}", format_si(seg.from, "s"))).first;
   const std::vector<ElementId> ids = diode_ids(c);
   for (std::size_t k = 0; k < ids.size(); ++k) {
@@ -537,8 +549,9 @@ DiodeStart StateSolver::diode_start(Solution& s, bool all_given) {
   auto march = [&](const Eigen::VectorXd& x0) {
     Eigen::VectorXd x = x0;
     double t = -period;
+    const double scale = x.size() > 0 ? x.cwiseAbs().maxCoeff() : 0.0;
     ConfigurationSearch start(s, *s.cache_, t, true, false,
-                              [&](const ReducedNetwork&, const StateSpace&) { return std::optional(x); });
+                              [&](const ReducedNetwork&, const StateSpace&) { return std::optional(x); }, scale);
     SwitchPositions p = start.find(last, where).first;
     Chatter chatter;
     for (int events = 0;; ++events) {
@@ -547,7 +560,7 @@ DiodeStart StateSolver::diode_start(Solution& s, bool all_given) {
              fmt::format("the diodes change state more than {} times in one period before t = 0; the periodic "
                          "steady state is not searched further; give every storage element an 'initial' value",
                          kMaxPeriodEvents));
-      const ReducedNetwork* net = judged_network(*s.cache_, states, p, x);
+      const ReducedNetwork* net = judged_network(*s.cache_, states, p, x, scale);
       if (!net)
         fail(c, c.element(anchor_element(s)).loc,
              "the network before t = 0 has, in one of its diode configurations, a part the states cannot settle in "
@@ -564,7 +577,7 @@ DiodeStart StateSolver::diode_start(Solution& s, bool all_given) {
       t = found->event.time;
       p.diodes[found->diode_slot] = found->diode_after;
       ConfigurationSearch next(s, *s.cache_, t, true, false,
-                               [&](const ReducedNetwork&, const StateSpace&) { return std::optional(x); });
+                               [&](const ReducedNetwork&, const StateSpace&) { return std::optional(x); }, scale);
       p = next.find(p, fmt::format("at {} before t = 0", format_si(t, "s"))).first;
     }
   };
@@ -577,7 +590,7 @@ DiodeStart StateSolver::diode_start(Solution& s, bool all_given) {
   bool converged = false;
   for (int iter = 0; iter < kMaxNewton && !converged; ++iter) {
     const Eigen::VectorXd fx = march(x) - x;
-    const double size = std::max(x.cwiseAbs().maxCoeff(), 1e-300);
+    const double size = std::max(x.cwiseAbs().maxCoeff(), fx.cwiseAbs().maxCoeff());
     if (fx.cwiseAbs().maxCoeff() <= kPeriodicTolerance * size) {
       converged = true;
       break;
@@ -585,7 +598,9 @@ DiodeStart StateSolver::diode_start(Solution& s, bool all_given) {
     Eigen::MatrixXd jac(n, n);
     for (Eigen::Index j = 0; j < n; ++j) {
       Eigen::VectorXd xp = x;
-      const double h = 1e-7 * std::max(std::fabs(x(j)), size);
+      // A step far above the march's rounding, small against the state (Φ is smooth between
+      // changes of the conduction pattern).
+      const double h = 1e-7 * std::max({std::fabs(x(j)), size, std::numeric_limits<double>::min()});
       xp(j) += h;
       jac.col(j) = (march(xp) - xp - fx) / h;
     }
