@@ -148,6 +148,8 @@ class NodalSystem {
   std::uint32_t unit_input() const { return unit_input_; }
   /// The state of diode `id` in this configuration.
   DiodeState diode_state(ElementId id) const { return positions_.diodes.at(diode_index_[id]); }
+  /// The circuit this system was built from.
+  const Circuit& circuit() const { return *circuit_; }
   /// The configuration this system was built for.
   const SwitchPositions& positions() const { return positions_; }
   /// Index of the test port's input in u (kNone without a test port).

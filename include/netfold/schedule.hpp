@@ -108,7 +108,10 @@ std::vector<double> sample_grid(const Window& window, double resolution);
 /// as written (0 when there is none): what sets the finest time scale a grid must resolve.
 double fastest_source_frequency(const Circuit& circuit);
 
-/// "K1 closes", "K1 opens", "supply steps by 5 V".
+/// "K1 closed, K2 open, d1, d4 conducting": the switches' positions and the diodes' states.
+std::string configuration_text(const Circuit& circuit, const SwitchPositions& positions);
+
+/// "K1 closes", "K1 opens", "supply steps by 5 V", "d1 starts conducting".
 std::string event_text(const Circuit& circuit, const ScheduledEvent& event);
 
 }  // namespace netfold

@@ -66,6 +66,9 @@ struct Segment {
   double from = 0.0, to = 0.0;    ///< s
   SwitchPositions positions;
   std::vector<std::string> changes;  ///< what happens at `from`: "K1 closes", "supply steps"
+  /// What started the segment, with exact times (state-dependent events included; diodes that
+  /// the configuration search changed at `from` appear as their own events).
+  std::vector<ScheduledEvent> events;
   PortMode mode = PortMode::port;
   /// The equivalent the storage element sees (rth, voc, isc as input combinations).
   Equivalent equivalent;

@@ -5,6 +5,7 @@
 #include <stdexcept>
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include "netfold/diagnostics.hpp"
 #include "netfold/units.hpp"
@@ -177,6 +178,23 @@ double fastest_source_frequency(const Circuit& c) {
     for (const auto& s : e.waveform.sinusoids)
       if (s.amplitude != 0.0) f = std::max(f, s.frequency);
   return f;
+}
+
+std::string configuration_text(const Circuit& c, const SwitchPositions& p) {
+  std::vector<std::string> parts;
+  std::vector<std::string> conducting, breakdown;
+  std::size_t k = 0, d = 0;
+  for (const auto& e : c.elements()) {
+    if (e.kind == ElementKind::switch_) parts.push_back(fmt::format("{} {}", e.name, p.closed[k++] ? "closed" : "open"));
+    if (e.kind != ElementKind::diode || d >= p.diodes.size()) continue;
+    const DiodeState state = p.diodes[d++];
+    if (state == DiodeState::forward) conducting.push_back(e.name);
+    if (state == DiodeState::reverse) breakdown.push_back(e.name);
+  }
+  if (!conducting.empty()) parts.push_back(fmt::format("{} conducting", fmt::join(conducting, ", ")));
+  if (!breakdown.empty()) parts.push_back(fmt::format("{} in breakdown", fmt::join(breakdown, ", ")));
+  if (d > 0 && conducting.empty() && breakdown.empty()) parts.push_back("every diode blocking");
+  return fmt::format("{}", fmt::join(parts, ", "));
 }
 
 std::string event_text(const Circuit& c, const ScheduledEvent& ev) {

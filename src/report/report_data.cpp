@@ -118,6 +118,20 @@ std::string solve_json(const SolveReport& report) {
                       {"tau", detail::json_number(s.tau)},
                       {"state_start", detail::json_number(s.state_start)},
                       {"changes", s.changes}};
+    // What started the segment, with exact times (spec v2), and the diodes' states.
+    nlohmann::json events = nlohmann::json::array();
+    for (const auto& ev : s.events)
+      events.push_back({{"time", detail::json_number(ev.time)}, {"element", c.element(ev.element).name},
+                        {"event", event_text(c, ev)}});
+    js["events"] = std::move(events);
+    if (!s.positions.diodes.empty()) {
+      static const char* kDiode[] = {"blocking", "conducting", "breakdown"};
+      nlohmann::json diodes = nlohmann::json::object();
+      std::size_t d = 0;
+      for (const auto& e : c.elements())
+        if (e.kind == ElementKind::diode) diodes[e.name] = kDiode[static_cast<int>(s.positions.diodes[d++])];
+      js["diodes"] = std::move(diodes);
+    }
     if (s.voc_defined) {
       js["vth_dc"] = detail::json_number(s.voc.dc);
       js["vth_phasors"] = phasors_json(s.voc);

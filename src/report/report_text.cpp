@@ -109,13 +109,7 @@ const char* initial_source_text(InitialStateSource src) {
 }
 
 std::string segment_heading(const Circuit& c, const Segment& s) {
-  std::string positions;
-  std::size_t k = 0;
-  for (const auto& e : c.elements()) {
-    if (e.kind != ElementKind::switch_) continue;
-    if (!positions.empty()) positions += ", ";
-    positions += fmt::format("{} {}", e.name, s.positions.closed[k++] ? "closed" : "open");
-  }
+  const std::string positions = configuration_text(c, s.positions);
   std::string changes;
   for (const auto& ch : s.changes) changes += (changes.empty() ? "" : ", ") + ch;
   return fmt::format("segment {}: {} .. {}{}{}{}{}", s.number, si(s.from, "s"), si(s.to, "s"),
@@ -233,8 +227,15 @@ void write_solve_text(std::ostream& out, const SolveReport& report) {
              sol.window_is_default() ? " (default: last event + max(8 τ, 5 periods))" : "",
              si(sol.resolution(), "s"));
 
-  for (const auto& s : sol.segments()) {
+  for (std::size_t k = 0; k < sol.segments().size(); ++k) {
+    const Segment& s = sol.segments()[k];
     fmt::print(out, "\n{}\n", segment_heading(c, s));
+    // With events found while solving, what ended the segment is part of its story.
+    if (sol.event_driven() && k + 1 < sol.segments().size() && !sol.segments()[k + 1].changes.empty()) {
+      std::string ends;
+      for (const auto& ch : sol.segments()[k + 1].changes) ends += (ends.empty() ? "" : ", ") + ch;
+      fmt::print(out, "  ends at {}: {}\n", si(s.to, "s"), ends);
+    }
     if (sol.storage() != kNone) write_state_lines(out, sol, s);
     if (sol.modal_path()) write_modes(out, s);
     for (const auto& obs : sol.observables()) {

@@ -17,19 +17,8 @@
 namespace netfold::detail {
 
 
-std::string positions_text(const Circuit& c, const SwitchPositions& p) {
-  std::string out;
-  std::size_t k = 0;
-  for (const auto& e : c.elements()) {
-    if (e.kind != ElementKind::switch_) continue;
-    if (!out.empty()) out += ", ";
-    out += fmt::format("{} {}", e.name, p.closed[k++] ? "closed" : "open");
-  }
-  return out;
-}
-
 std::string segment_text(const Circuit& c, const Segment& s) {
-  std::string pos = positions_text(c, s.positions);
+  std::string pos = configuration_text(c, s.positions);
   return fmt::format("segment {} ({} .. {}{}{})", s.number, format_si(s.from, "s"), format_si(s.to, "s"),
                      pos.empty() ? "" : ", ", pos);
 }
@@ -41,6 +30,7 @@ Segment scheduled_segment(const Circuit& c, const ScheduledSegment& planned, std
   seg.to = planned.to;
   seg.positions = planned.positions;
   for (const auto& ev : planned.changes) seg.changes.push_back(event_text(c, ev));
+  seg.events = planned.changes;
   return seg;
 }
 

@@ -15,7 +15,6 @@ extern const double kShortestTau;
 extern const double kMaxSamples;
 extern const double kMaxDefaultWindow;
 
-std::string positions_text(const Circuit& c, const SwitchPositions& p);
 std::string segment_text(const Circuit& c, const Segment& s);
 // The k-th (from 0) segment of the schedule, before any numerics: span, positions, changes.
 Segment scheduled_segment(const Circuit& c, const ScheduledSegment& planned, std::size_t k);

@@ -223,6 +223,33 @@ const ReducedNetwork* judged_network(NetworkCache& cache, const std::vector<Elem
   return net;
 }
 
+// Whether the floating part of the circuit at one of a diode's ends holds nothing that could
+// drive a current: no source, controlled source or storage element touches it.
+bool inert_floating_part(const NodalSystem& sys, const Element& diode) {
+  const Circuit& c = sys.circuit();
+  const NodeId node = sys.node_floating(diode.pos) ? diode.pos : diode.neg;
+  const auto part = sys.component_of(node);
+  for (const Element& e : c.elements()) {
+    const bool touches = (e.pos != c.ground() && sys.component_of(e.pos) == part && sys.node_floating(e.pos)) ||
+                         (e.neg != c.ground() && sys.component_of(e.neg) == part && sys.node_floating(e.neg));
+    if (!touches) continue;
+    switch (e.kind) {
+      case ElementKind::resistor:
+      case ElementKind::switch_:
+      case ElementKind::diode: break;
+      case ElementKind::capacitor:
+      case ElementKind::inductor:
+      case ElementKind::voltage_source:
+      case ElementKind::current_source:
+      case ElementKind::vcvs:
+      case ElementKind::vccs:
+      case ElementKind::ccvs:
+      case ElementKind::cccs: return false;
+    }
+  }
+  return true;
+}
+
 // How a configuration fares at one instant.
 struct Verdict {
   bool valid = true;                   // its network has no structural problem
@@ -313,8 +340,10 @@ class ConfigurationSearch {
         const LinearForm form = cond.current ? sys.element_current(ids_[slot]) : sys.element_voltage(ids_[slot]);
         const Quantity q = evaluate(*net, ss, form, x, u);
         if (!q.defined) {
-          // A blocking diode with an open `off` that leaves part of the circuit floating: the
-          // spec's error, at once (no configuration reached from here can be judged either).
+          // A blocking diode with an open `off` on a floating part: harmless where that part holds
+          // nothing that could drive a current through the diode (only resistors and open
+          // contacts: the diode cannot conduct); otherwise the spec's error, at once.
+          if (inert_floating_part(sys, d)) break;
           v.floating.push_back(slot);
           ever_floating_.insert(slot);
           fail_inconsistent(where_);
@@ -466,8 +495,11 @@ void StateSolver::settle_diodes(Solution& s, Segment& seg, const Eigen::VectorXd
   const std::vector<ElementId> ids = diode_ids(c);
   for (std::size_t k = 0; k < ids.size(); ++k) {
     if (seg.positions.diodes[k] == before[k]) continue;
-    const std::string text = event_text(c, ScheduledEvent{seg.from, ids[k], event_kind(seg.positions.diodes[k]), 0.0});
-    if (std::find(seg.changes.begin(), seg.changes.end(), text) == seg.changes.end()) seg.changes.push_back(text);
+    const ScheduledEvent event{seg.from, ids[k], event_kind(seg.positions.diodes[k]), 0.0};
+    const std::string text = event_text(c, event);
+    if (std::find(seg.changes.begin(), seg.changes.end(), text) != seg.changes.end()) continue;
+    seg.changes.push_back(text);
+    seg.events.push_back(event);
   }
 }
 
