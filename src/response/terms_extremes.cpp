@@ -147,3 +147,97 @@ Extremes find_extremes_of_product(const Response& f, const Response& g, double f
 }
 
 }  // namespace netfold::response
+
+namespace netfold::response {
+
+std::optional<Response> transient_part(const Response& y) {
+  if (!y.steady_state()) return std::nullopt;
+  Response e;
+  e.t0 = y.t0;
+  e.t1 = y.t1;
+  for (const auto& t : y.terms) {
+    if (!t.has_phi) {
+      if (t.z.real() < 0.0) e.terms.push_back(t);
+      continue;
+    }
+    // c·φ(d, s)·e^{zs} = (c/d)·e^{(z+d)s} − (c/d)·e^{zs}: both parts decay, or one of them is
+    // part of the steady state (then d ≠ 0: the two rates differ).
+    const bool fast = (t.z + t.d).real() < 0.0, slow = t.z.real() < 0.0;
+    if (fast && slow) {
+      e.terms.push_back(t);
+    } else if (fast) {
+      e.terms.push_back(Term{t.c / t.d, t.z + t.d, t.k, false, {}});
+    } else if (slow) {
+      e.terms.push_back(Term{-t.c / t.d, t.z, t.k, false, {}});
+    }
+  }
+  return e;
+}
+
+namespace {
+
+// A term's bound |c|·s^k·e^{r·s} (r < 0): |φ(d, s)| ≤ s·max(1, e^{Re d·s}).
+struct Envelope {
+  double c = 0.0, r = 0.0;
+  int k = 0;
+  double at(double s) const { return c * std::pow(s, k) * std::exp(r * s); }
+};
+
+}  // namespace
+
+std::optional<double> settling_time(const Response& e, double level) {
+  std::vector<Envelope> env;
+  double last_hump = 0.0, slowest = 0.0;
+  for (const auto& t : e.terms) {
+    Envelope b{std::abs(t.c), t.has_phi ? std::max(t.z.real(), (t.z + t.d).real()) : t.z.real(), t.k + (t.has_phi ? 1 : 0)};
+    if (!(b.r < 0.0)) return std::nullopt;
+    last_hump = std::max(last_hump, b.k / -b.r);  // each bound decreases from its hump on
+    slowest = std::max(slowest, 1.0 / -b.r);
+    env.push_back(b);
+  }
+  auto bound = [&](double s) {
+    double sum = 0.0;
+    for (const auto& b : env) sum += b.at(s);
+    return sum;
+  };
+  if (env.empty()) return 0.0;
+  // The span beyond which the bound (decreasing there) stays below the level.
+  double span = std::max(last_hump, slowest);
+  for (int i = 0; bound(span) >= level; ++i) {
+    if (i > 200) return std::nullopt;
+    span *= 2.0;
+  }
+  const double from = e.t0, to = e.t0 + span;
+  // Every sample and every local extreme on the grid, in order; the last one where |e| reaches
+  // the level starts the last excursion's fall.
+  const Signal sig{e};
+  const std::vector<double> ts = sample_times(sig, from, to);
+  double hit = std::nan(""), after = to;
+  auto consider = [&](double t) {
+    if (std::fabs(sig.value(t)) >= level) {
+      hit = t;
+      after = to;
+    } else if (!std::isnan(hit) && after == to) {
+      after = t;
+    }
+  };
+  consider(ts.front());
+  double t_prev = ts.front(), d_prev = sig.d1(t_prev);
+  for (std::size_t i = 1; i < ts.size(); ++i) {
+    const double t = ts[i], d = sig.d1(t);
+    if ((d_prev > 0.0 && d <= 0.0) || (d_prev < 0.0 && d >= 0.0)) consider(refine(sig, t_prev, t, d_prev));
+    consider(t);
+    t_prev = t;
+    d_prev = d;
+  }
+  if (std::isnan(hit)) return 0.0;
+  // e is monotone on [hit, after]: |e| − level changes sign once there.
+  double a = hit, b = after;
+  for (int iter = 0; iter < 200 && b - a > 2.0 * std::numeric_limits<double>::epsilon() * std::fabs(b); ++iter) {
+    const double m = 0.5 * (a + b);
+    (std::fabs(sig.value(m)) >= level ? a : b) = m;
+  }
+  return 0.5 * (a + b) - e.t0;
+}
+
+}  // namespace netfold::response
