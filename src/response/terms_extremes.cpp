@@ -55,15 +55,83 @@ void collect_decays(const Response& y, std::set<long>& buckets, std::vector<doub
   }
 }
 
+// An oscillation the grid must resolve (rad/s) until an absolute time (+∞: for good).
+struct Oscillation {
+  double w = 0.0, until = 0.0;
+};
+
+// Each term's oscillation, resolved only while its bound |c|·s^k'·e^{r·s} is above
+// kNegligibleShare of the response's size: past that, it moves the extremes by less than
+// rounding and the grid follows the slower terms (a fast ring that dies within the first
+// percent of a long window no longer sets the density of the whole window).
+constexpr double kNegligibleShare = 1e-17;
+
+void collect_oscillations(const Response& y, std::vector<Oscillation>& out) {
+  const double inf = std::numeric_limits<double>::infinity();
+  double size = std::fabs(y.periodic.dc);
+  for (const auto& p : y.periodic.phasors) {
+    size += std::abs(p.value);
+    out.push_back({2.0 * std::numbers::pi * p.frequency, inf});
+  }
+  struct Bound {
+    double c, r, w;
+    int k;
+    double at(double s) const { return c * std::pow(s, k) * std::exp(r * s); }
+  };
+  std::vector<Bound> bounds;
+  for (const auto& t : y.terms) {
+    Bound b{std::abs(t.c), t.has_phi ? std::max(t.z.real(), (t.z + t.d).real()) : t.z.real(),
+            std::max(std::fabs(t.z.imag()), t.has_phi ? std::fabs((t.z + t.d).imag()) : 0.0), t.k + (t.has_phi ? 1 : 0)};
+    const double hump = b.r < 0.0 ? b.k / -b.r : 0.0;
+    size += b.r < 0.0 ? b.at(hump) : b.at(std::max(y.t1 - y.t0, 0.0));
+    bounds.push_back(b);
+  }
+  for (const auto& b : bounds) {
+    if (b.w == 0.0) continue;
+    if (!(b.r < 0.0) || !std::isfinite(size)) {
+      out.push_back({b.w, inf});
+      continue;
+    }
+    double s = std::max(b.k / -b.r, 1.0 / -b.r);  // past the hump: the bound decreases
+    int i = 0;
+    while (b.at(s) >= kNegligibleShare * size && i++ < 200) s *= 2.0;
+    out.push_back({b.w, i > 200 ? inf : y.t0 + s});
+  }
+}
+
 std::vector<double> sample_times(const Signal& sig, double from, double to) {
   const double span = to - from;
-  double w = sig.f.fastest_angular_frequency() + (sig.g ? sig.g->fastest_angular_frequency() : 0.0);
-  double wanted = std::ceil(span * w / (2.0 * std::numbers::pi) * kPointsPerPeriod);
-  const auto n = static_cast<std::size_t>(std::clamp(wanted, kMinPoints, kMaxPoints));
+  std::vector<Oscillation> osc_f, osc_g;
+  collect_oscillations(sig.f, osc_f);
+  if (sig.g) collect_oscillations(*sig.g, osc_g);
+  // The grid's density is a step function of t: the fastest oscillation still resolved. A product
+  // f·g oscillates at the sum of its factors' fastest frequencies.
+  std::vector<double> cuts = {from, to};
+  for (const auto* list : {&osc_f, &osc_g})
+    for (const auto& o : *list)
+      if (o.until > from && o.until < to) cuts.push_back(o.until);
+  std::sort(cuts.begin(), cuts.end());
+  cuts.erase(std::unique(cuts.begin(), cuts.end()), cuts.end());
+  auto fastest = [](const std::vector<Oscillation>& list, double at) {
+    double w = 0.0;
+    for (const auto& o : list)
+      if (o.until > at) w = std::max(w, o.w);
+    return w;
+  };
   std::vector<double> ts;
-  ts.reserve(n + 1);
-  for (std::size_t i = 0; i <= n; ++i) ts.push_back(from + span * static_cast<double>(i) / static_cast<double>(n));
-  ts.back() = to;
+  // The whole interval on a grid of at least kMinPoints, as before.
+  const auto n_min = static_cast<std::size_t>(kMinPoints);
+  for (std::size_t i = 0; i <= n_min; ++i) ts.push_back(from + span * static_cast<double>(i) / static_cast<double>(n_min));
+  double budget = kMaxPoints;
+  for (std::size_t c = 0; c + 1 < cuts.size(); ++c) {
+    const double a = cuts[c], b = cuts[c + 1];
+    const double w = fastest(osc_f, a) + fastest(osc_g, a);
+    const double wanted = std::ceil((b - a) * w / (2.0 * std::numbers::pi) * kPointsPerPeriod);
+    const auto n = static_cast<std::size_t>(std::clamp(wanted, 1.0, std::max(budget, 1.0)));
+    budget -= static_cast<double>(n);
+    for (std::size_t i = 0; i < n; ++i) ts.push_back(a + (b - a) * static_cast<double>(i) / static_cast<double>(n));
+  }
+  ts.push_back(to);
   std::set<long> buckets;
   std::vector<double> rates;
   collect_decays(sig.f, buckets, rates);
@@ -80,6 +148,7 @@ std::vector<double> sample_times(const Signal& sig, double from, double to) {
   }
   std::sort(ts.begin(), ts.end());
   ts.erase(std::unique(ts.begin(), ts.end()), ts.end());
+  while (!ts.empty() && ts.back() > to) ts.pop_back();
   return ts;
 }
 
