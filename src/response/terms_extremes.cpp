@@ -277,27 +277,32 @@ std::optional<double> settling_time(const Response& e, double level) {
     span *= 2.0;
   }
   const double from = e.t0, to = e.t0 + span;
-  // Every sample and every local extreme on the grid, in order; the last one where |e| reaches
-  // the level starts the last excursion's fall.
+  // The grid's samples and local extremes from the end backwards: the first one where |e|
+  // reaches the level is the last excursion's last point there (the decays' clusters, which
+  // make most of the grid, lie early and are seldom visited).
   const Signal sig{e};
   const std::vector<double> ts = sample_times(sig, from, to);
   double hit = std::nan(""), after = to;
-  auto consider = [&](double t) {
+  double t_next = ts.back(), d_next = sig.d1(t_next);
+  for (std::size_t i = ts.size() - 1; i-- > 0;) {
+    const double t = ts[i], d = sig.d1(t);
+    double later = t_next;  // the next considered point after t
+    if ((d > 0.0 && d_next <= 0.0) || (d < 0.0 && d_next >= 0.0)) {
+      const double root = refine(sig, t, t_next, d);
+      if (std::fabs(sig.value(root)) >= level) {
+        hit = root;
+        after = t_next;
+        break;
+      }
+      later = root;
+    }
     if (std::fabs(sig.value(t)) >= level) {
       hit = t;
-      after = to;
-    } else if (!std::isnan(hit) && after == to) {
-      after = t;
+      after = later;
+      break;
     }
-  };
-  consider(ts.front());
-  double t_prev = ts.front(), d_prev = sig.d1(t_prev);
-  for (std::size_t i = 1; i < ts.size(); ++i) {
-    const double t = ts[i], d = sig.d1(t);
-    if ((d_prev > 0.0 && d <= 0.0) || (d_prev < 0.0 && d >= 0.0)) consider(refine(sig, t_prev, t, d_prev));
-    consider(t);
-    t_prev = t;
-    d_prev = d;
+    t_next = t;
+    d_next = d;
   }
   if (std::isnan(hit)) return 0.0;
   // e is monotone on [hit, after]: |e| − level changes sign once there.
