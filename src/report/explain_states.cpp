@@ -85,10 +85,10 @@ void write_states_explanation(std::ostream& out, const Solution& sol, const Term
     starts.push_back(fmt::format("{}(0-) = {}", state_name(e), si(sol.initial_states()[k], cap ? "V" : "A")));
   }
   fmt::print(out, "  1. The storage elements are {}:\n"
-                  "     {} states x = ({}). Within a segment the rest of the network is resistive, so\n"
-                  "     each capacitor is replaced by a voltage source holding its\n"
-                  "     voltage and each inductor by a current source driving its current, and the MNA\n"
-                  "     equations G·x = B·u are solved once for every input (each state and each source).\n",
+                  "     {} states x = ({}). Within a segment the rest of the network is resistive, so each\n"
+                  "     capacitor is replaced by a voltage source holding its voltage and each inductor by a\n"
+                  "     current source driving its current, and the MNA equations G·x = B·u are solved once\n"
+                  "     for every input (each state and each source).\n",
              fmt::join(list, ", "), ids.size(), fmt::join(names, ", "));
   fmt::print(out, "  2. Each element's port quantity is then a linear function of the states and the sources:\n"
                   "     C·dv/dt = i_C and L·di/dt = v_L give the state equation dx/dt = A·x + B·u(t).\n");
