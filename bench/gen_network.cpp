@@ -3,6 +3,8 @@
 //   gen_network grid NODES [SEED]      square resistive grid of about NODES nodes, one capacitor
 //   gen_network ladder SECTIONS [SEED] cable/winding ladder, one inductor
 //   gen_network random NODES [SEED]    random network with controlled sources, one capacitor
+//   gen_network grid100 NODES [SEED]   the grid with 100 capacitors
+//   gen_network chain STATES [SEED]    lossy LC filter chain of STATES/2 sections (several states)
 #include <cstdio>
 #include <cstdlib>
 #include <iostream>
@@ -13,7 +15,7 @@
 int main(int argc, char** argv) {
   using namespace netfold::bench;
   if (argc < 3) {
-    std::cerr << "usage: gen_network grid|ladder|random SIZE [SEED]\n";
+    std::cerr << "usage: gen_network grid|ladder|random|grid100|chain SIZE [SEED]\n";
     return 2;
   }
   const std::string kind = argv[1];
@@ -36,8 +38,19 @@ int main(int argc, char** argv) {
     o.nodes = size;
     if (seeded) o.seed = seed;
     net = generate_random(o);
+  } else if (kind == "grid100") {
+    GridOptions o;
+    o.rows = o.cols = grid_side_for(size);
+    o.capacitors = 100;
+    if (seeded) o.seed = seed;
+    net = generate_grid(o);
+  } else if (kind == "chain") {
+    RlcLadderOptions o;
+    o.sections = size / 2 > 0 ? size / 2 : 1;
+    if (seeded) o.seed = seed;
+    net = generate_rlc_ladder(o);
   } else {
-    std::cerr << "gen_network: unknown kind '" << kind << "', expected grid, ladder or random\n";
+    std::cerr << "gen_network: unknown kind '" << kind << "', expected grid, ladder, random, grid100 or chain\n";
     return 2;
   }
   std::fwrite(net.text.data(), 1, net.text.size(), stdout);

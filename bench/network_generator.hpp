@@ -2,7 +2,8 @@
 /// \file network_generator.hpp
 /// Generators of large `.nf` circuits for the benchmarks and the solver tests: a 2-D resistive
 /// grid (a power-distribution or sensor-array model), a ladder (a cable or a winding), and a
-/// random sparse network with controlled sources. Each has exactly one storage element, is
+/// random sparse network with controlled sources, each with one storage element (the grid with
+/// as many capacitors as asked); and a lossy LC filter chain with two states per section. Each is
 /// connected, and is deterministic: the same options give the same text, byte for byte, on
 /// every platform (the pseudo-random numbers come from SplitMix64, not from <random>, whose
 /// distributions differ between standard libraries).
@@ -63,6 +64,10 @@ struct GridOptions {
   /// engine factors one matrix.
   std::string waveform = "step 1 V at 1 ms";
   std::string capacitance = "1 mF";
+  /// Storage elements: C1 at the far corner, and C2 .. C{capacitors} from pseudo-random nodes
+  /// to gnd (drawn from their own generator after the resistors, so that the text of a grid with
+  /// one capacitor is unchanged).
+  std::size_t capacitors = 1;
 };
 
 /// A rows × cols grid of nodes n{i}_{j} joined by resistors to their right and lower
@@ -90,6 +95,13 @@ inline GeneratedNetwork generate_grid(const GridOptions& o) {
                        resistance());
     }
   net.elements += k;
+  SplitMix64 place(o.seed ^ 0xC0FFEEULL);
+  for (std::size_t c = 2; c <= o.capacitors; ++c) {
+    const std::size_t node = place.below(o.rows * o.cols);
+    fmt::format_to(std::back_inserter(out), "C{}: capacitor n{}_{} -> gnd, {} uF\n", c, node / o.cols, node % o.cols,
+                   thousandths(100'000 + place.below(900'001)));
+    ++net.elements;
+  }
   net.nodes = o.rows * o.cols;
   net.source = "V1";
   net.storage = "C1";
@@ -208,6 +220,48 @@ inline GeneratedNetwork generate_random(const RandomOptions& o) {
   net.nodes = n + 1 + per_kind;
   net.source = "V1";
   net.storage = "C1";
+  net.text = fmt::to_string(out);
+  return net;
+}
+
+/// Options of generate_rlc_ladder.
+struct RlcLadderOptions {
+  std::size_t sections = 1;  ///< two storage elements per section
+  std::uint64_t seed = 4;    ///< every value varies by up to ±25 % with this seed
+  std::string waveform = "dc 48 V";
+  /// Extra lines appended (watch, sweep, window ...); empty: watch L1.i and the last C.v.
+  std::string extra;
+};
+
+/// A filter chain of `sections` LC sections with losses: V1 is closed onto it by K1 at 0 s;
+/// section k has a series inductor L{k} n{k−1} → m{k} (about 10 µH) with its winding
+/// resistance Rs{k} m{k} → n{k} (about 0.1 ohm), and a shunt capacitor C{k} n{k} → c{k}
+/// (about 10 µF) with its ESR Re{k} c{k} → gnd (about 20 mohm); Rl, 10 ohm, loads the last node.
+/// 2·sections states, 4·sections + 3 elements. Each section rings near 16 kHz; the spread of
+/// values keeps the modes apart.
+inline GeneratedNetwork generate_rlc_ladder(const RlcLadderOptions& o) {
+  GeneratedNetwork net;
+  SplitMix64 rng(o.seed);
+  auto vary = [&](std::uint64_t nominal_milli) { return thousandths(nominal_milli * (750 + rng.below(501)) / 1000); };
+  fmt::memory_buffer out;
+  fmt::format_to(std::back_inserter(out), "title \"LC filter chain of {} sections\"\n", o.sections);
+  fmt::format_to(std::back_inserter(out), "V1: voltage-source s -> gnd, {}\n", o.waveform);
+  fmt::format_to(std::back_inserter(out), "K1: switch s -> n0, closes at 0 s\n");
+  for (std::size_t k = 1; k <= o.sections; ++k) {
+    fmt::format_to(std::back_inserter(out), "L{}: inductor n{} -> m{}, {} uH\n", k, k - 1, k, vary(10'000));
+    fmt::format_to(std::back_inserter(out), "Rs{}: resistor m{} -> n{}, {} ohm\n", k, k, k, vary(100));
+    fmt::format_to(std::back_inserter(out), "C{}: capacitor n{} -> c{}, {} uF\n", k, k, k, vary(10'000));
+    fmt::format_to(std::back_inserter(out), "Re{}: resistor c{} -> gnd, {} mohm\n", k, k, vary(20'000));
+  }
+  fmt::format_to(std::back_inserter(out), "Rl: resistor n{} -> gnd, 10 ohm\n", o.sections);
+  if (o.extra.empty())
+    fmt::format_to(std::back_inserter(out), "watch L1.i, C{}.v\n", o.sections);
+  else
+    out.append(o.extra);
+  net.elements = 4 * o.sections + 3;
+  net.nodes = 3 * o.sections + 2;
+  net.source = "V1";
+  net.storage = "L1";
   net.text = fmt::to_string(out);
   return net;
 }

@@ -161,3 +161,79 @@ TEST_CASE("peaks and energies of a two-capacitor RC circuit agree along two path
   // And each capacitor's own energy figure is its loss, with the sign of absorbed energy.
   CHECK_REL(element_energy(*s.solution, *s.circuit->find_element("C1")), -0.5 * 10e-6 * (100.0 - v1 * v1), 1e-9);
 }
+
+namespace {
+
+// The last t in [0, t_end] where |e(t)| ≥ level, from a dense scan backwards and bisection: an
+// evaluation of the textbook formula independent of the engine's terms and search.
+template <class F>
+double last_reach(F e, double level, double t_end, double step) {
+  double t = t_end;
+  while (t > 0.0 && std::fabs(e(t)) < level) t -= step;
+  if (t <= 0.0) return 0.0;
+  double a = t, b = t + step;
+  for (int i = 0; i < 200; ++i) {
+    const double m = 0.5 * (a + b);
+    (std::fabs(e(m)) >= level ? a : b) = m;
+  }
+  return 0.5 * (a + b);
+}
+
+}  // namespace
+
+TEST_CASE("an underdamped series RLC step settles within its envelope's 1 % time", "[solve]") {
+  // Source: second-order step response (textbook, from memory): with α = R/2L, ω_d = ω_n·√(1 − ζ²),
+  // v_C(t) − V = −V·e^{−αt}·(cos ω_d t + (α/ω_d)·sin ω_d t), whose size is at most the envelope
+  // V·e^{−αt}/√(1 − ζ²), touched once per half period. The 1 % band (of |y_ss| = V) is left for
+  // good at most at t_env = ln(100/√(1 − ζ²))/α and at least half a damped period before it.
+  auto s = solve_text(
+      "V1: voltage-source a -> gnd, dc 10 V\nK1: switch a -> b, closes at 0 s\n"
+      "R1: resistor b -> c, 20 ohm\nL1: inductor c -> d, 1 mH\nC1: capacitor d -> gnd, 100 nF\n");
+  const double V = 10.0, R = 20.0, L = 1e-3, C = 100e-9;
+  const double alpha = R / (2 * L), wn = 1 / std::sqrt(L * C), zeta = alpha / wn;
+  const double wd = wn * std::sqrt(1 - zeta * zeta);
+  const double t_env = std::log(100.0 / std::sqrt(1 - zeta * zeta)) / alpha;
+  Figures f = figures(s, "C1.v");
+  REQUIRE(f.settling_time);
+  CHECK(*f.settling_time <= t_env);
+  CHECK(*f.settling_time >= t_env - kPi / wd);
+  auto e = [&](double t) { return V * std::exp(-alpha * t) * (std::cos(wd * t) + alpha / wd * std::sin(wd * t)); };
+  CHECK_REL(*f.settling_time, last_reach(e, 0.01 * V, t_env, 1e-3 / wd), 1e-9);
+}
+
+TEST_CASE("a critically damped series RLC step settles where (1 + x)e^-x falls to 1 %", "[solve]") {
+  // Source: series RLC step at critical damping (textbook, from memory): α = R/2L = ω_n,
+  // v_C(t) = V·(1 − (1 + αt)·e^{−αt}), i(t) = (V/L)·t·e^{−αt}. v_C settles where
+  // (1 + αt)·e^{−αt} = 0.01 (αt ≈ 6.64). The current's steady state is 0: its band is 1 % of its
+  // peak in the window, 2V/(eR) (spec: "of the window's peak |y| where y_ss is zero").
+  auto s = solve_text(
+      "V1: voltage-source a -> gnd, dc 10 V\nK1: switch a -> b, closes at 0 s\n"
+      "R1: resistor b -> c, 200 ohm\nL1: inductor c -> d, 1 mH\nC1: capacitor d -> gnd, 100 nF\n");
+  const double V = 10.0, R = 200.0, L = 1e-3, alpha = R / (2 * L);
+  auto ev = [&](double t) { return V * (1 + alpha * t) * std::exp(-alpha * t); };
+  Figures fv = figures(s, "C1.v");
+  REQUIRE(fv.settling_time);
+  CHECK_REL(*fv.settling_time, last_reach(ev, 0.01 * V, 20 / alpha, 1e-3 / alpha), 1e-9);
+  CHECK_REL(alpha * *fv.settling_time, 6.638, 1e-3);
+  auto ei = [&](double t) { return V / L * t * std::exp(-alpha * t); };
+  Figures fi = figures(s, "L1.i");
+  REQUIRE(fi.settling_time);
+  CHECK_REL(*fi.settling_time, last_reach(ei, 0.01 * 2 * V / (std::numbers::e * R), 20 / alpha, 1e-3 / alpha), 1e-9);
+}
+
+TEST_CASE("a lossless LC's ringing is part of its steady state, so it settles at once", "[solve]") {
+  // Common practice, no source: v_C = V·(1 − cos ω₀t), ω₀ = 1/√(LC). Without loss the ringing
+  // never decays: it belongs to the steady state y_ss (which the report prints), and
+  // |y − y_ss| = 0 from the event on.
+  auto s = solve_text(
+      "V1: voltage-source a -> gnd, dc 48 V\nK1: switch a -> b, closes at 0 s\n"
+      "L1: inductor b -> c, 10 mH\nC1: capacitor c -> gnd, 10 uF\nwindow 0 .. 2 ms\n");
+  Figures f = figures(s, "C1.v");
+  REQUIRE(f.steady);
+  CHECK_REL(f.steady->dc, 48.0, 1e-12);
+  REQUIRE(f.steady->phasors.size() == 1);
+  CHECK_REL(f.steady->phasors.front().frequency, 1 / (2 * kPi * std::sqrt(10e-3 * 10e-6)), 1e-12);
+  CHECK_REL(std::abs(f.steady->phasors.front().value), 48.0, 1e-12);
+  REQUIRE(f.settling_time);
+  CHECK(*f.settling_time == 0.0);
+}

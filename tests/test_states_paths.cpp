@@ -1,8 +1,11 @@
 // Several storage elements through every path that is not the closed form itself: claims
 // (tau[k], frequency[k], damping[k], rth refused), solve --json (storage_elements, state_start by
-// name, modes), equiv at a port with the states held, and the figures of the report.
+// name, modes), equiv at a port with the states held, the figures of the report, and `worst`
+// (phase and residual-state sweeps) and the CSV against the independent numerical integration.
+#include <algorithm>
 #include <cmath>
 #include <numbers>
+#include <sstream>
 
 #include <catch2/catch.hpp>
 #include <nlohmann/json.hpp>
@@ -11,6 +14,8 @@
 #include "netfold/claims.hpp"
 #include "netfold/port_equivalent.hpp"
 #include "netfold/report.hpp"
+#include "netfold/verify.hpp"
+#include "netfold/worst.hpp"
 
 using namespace netfold;
 using namespace netfold::testing;
@@ -101,4 +106,113 @@ TEST_CASE("the figures of a several-state observable agree with its own closed f
   const std::complex<double> vc = 10.0 / (5.0 + jw * 10e-3 + 1.0 / (jw * 100e-6)) / (jw * 100e-6);
   REQUIRE(f.amplitude);
   CHECK_REL(*f.amplitude, std::abs(vc), 1e-9);
+}
+
+namespace {
+
+// The largest |y| of each observable over a numerical run of `text` under `scenario` (the
+// verify path's CVODE integration of the full nodal equations; nothing of the closed form).
+std::vector<double> numerical_peaks(const std::string& text, const Scenario& scenario) {
+  SolveOptions options;
+  options.scenario = scenario;
+  Solved s = solve_text(text, options);
+  const NumericalRun run = integrate_inputs(*s, IntegrateOptions{1e-11, 0.0, 5'000'000});
+  REQUIRE(run.status == IntegrationStatus::ok);
+  std::vector<double> peaks;
+  for (const auto& v : run.values) {
+    double p = 0.0;
+    for (double x : v) p = std::max(p, std::fabs(x));
+    peaks.push_back(p);
+  }
+  return peaks;
+}
+
+// A sampled maximum lies below the true peak by at most about (ω·Δt)²/8 of it; with Δt = 2 µs
+// and the fastest angular frequency ~1000 rad/s that is 5e-7 (calculus, common practice).
+constexpr double kSampledPeakTolerance = 2e-6;
+
+}  // namespace
+
+TEST_CASE("worst over a phase sweep of a several-state circuit matches the numerical peak at every grid point",
+          "[worst][states]") {
+  const std::string text = std::string(kSeriesRlc) + "resolution 2 us\nsweep src.phase -180 deg .. 180 deg step 45 deg\n";
+  Solved s = solve_text(text);
+  const WorstReport r = find_worst_case(*s.circuit, s.circuit->sweeps(), WorstOptions{});
+  REQUIRE(r.sweeps.size() == 1);
+  const SweepResult& sw = r.sweeps.front();
+  REQUIRE(sw.grid.size() == 9);
+  const ElementId src = *s.circuit->find_element("src");
+  for (std::size_t i = 0; i < sw.grid.size(); ++i) {
+    Scenario sc;
+    sc.source_phases.push_back({src, sw.grid[i]});
+    const std::vector<double> numeric = numerical_peaks(text, sc);
+    for (std::size_t k = 0; k < numeric.size(); ++k) {
+      INFO("grid point " << i << " (" << sw.grid[i] << " rad), observable " << k);
+      CHECK(numeric[k] <= sw.grid_peaks[k][i] * (1 + 1e-8));
+      CHECK(numeric[k] >= sw.grid_peaks[k][i] * (1 - kSampledPeakTolerance));
+    }
+  }
+  // The refined worst case is at least every grid point's peak, and the numerical run at its
+  // argument reaches it.
+  for (std::size_t k = 0; k < sw.observables.size(); ++k) {
+    CHECK(sw.observables[k].worst >= *std::max_element(sw.grid_peaks[k].begin(), sw.grid_peaks[k].end()));
+    Scenario sc;
+    sc.source_phases.push_back({src, sw.observables[k].worst_at});
+    const double numeric = numerical_peaks(text, sc)[k];
+    CHECK(numeric <= sw.observables[k].worst * (1 + 1e-8));
+    CHECK(numeric >= sw.observables[k].worst * (1 - kSampledPeakTolerance));
+  }
+}
+
+TEST_CASE("worst over a residual-state sweep of a several-state circuit matches the numerical peak", "[worst][states]") {
+  // C1 is floating before K1 closes (its state undetermined): the sweep sets its residual voltage.
+  const std::string text =
+      std::string(kSeriesRlc) + "resolution 2 us\nsweep C1.initial -20 V .. 20 V step 10 V\n";
+  Solved s = solve_text(text);
+  const WorstReport r = find_worst_case(*s.circuit, s.circuit->sweeps(), WorstOptions{});
+  const SweepResult& sw = r.sweeps.front();
+  REQUIRE(sw.grid.size() == 5);
+  const ElementId c1 = *s.circuit->find_element("C1");
+  for (std::size_t i = 0; i < sw.grid.size(); ++i) {
+    Scenario sc;
+    sc.residual_states.push_back({c1, sw.grid[i]});
+    const std::vector<double> numeric = numerical_peaks(text, sc);
+    for (std::size_t k = 0; k < numeric.size(); ++k) {
+      INFO("C1 at " << sw.grid[i] << " V, observable " << k);
+      CHECK(numeric[k] <= sw.grid_peaks[k][i] * (1 + 1e-8));
+      CHECK(numeric[k] >= sw.grid_peaks[k][i] * (1 - kSampledPeakTolerance));
+    }
+  }
+  // C1.v's largest peak is at an end of the range: the residual voltage adds to the ring.
+  CHECK((sw.observables[1].worst_at == -20.0 || sw.observables[1].worst_at == 20.0));
+}
+
+TEST_CASE("the CSV of a several-state circuit agrees row by row with the numerical integration", "[report][states]") {
+  Solved s = solve_text(std::string(kSeriesRlc) + "resolution 50 us\n");
+  const std::string csv = waveform_csv(*s);
+  const NumericalRun run = integrate_inputs(*s, IntegrateOptions{1e-12, 0.0, 5'000'000});
+  REQUIRE(run.status == IntegrationStatus::ok);
+  std::istringstream in(csv);
+  std::string line;
+  std::getline(in, line);
+  CHECK(line == "t,L1.i,C1.v");
+  std::vector<double> scale(run.values.size(), 0.0);
+  for (std::size_t k = 0; k < run.values.size(); ++k)
+    for (double x : run.values[k]) scale[k] = std::max(scale[k], std::fabs(x));
+  std::size_t row = 0;
+  while (std::getline(in, line)) {
+    REQUIRE(row < run.times.size());
+    std::istringstream fields(line);
+    std::string field;
+    std::getline(fields, field, ',');
+    CHECK(std::stod(field) == Approx(run.times[row]).margin(1e-15));
+    for (std::size_t k = 0; k < run.values.size(); ++k) {
+      std::getline(fields, field, ',');
+      INFO("row " << row << " t = " << run.times[row] << ", column " << k + 1);
+      CHECK(std::fabs(std::stod(field) - run.values[k][row]) <= 1e-8 * scale[k]);
+    }
+    ++row;
+  }
+  CHECK(row == run.times.size());
+  CHECK(row == 801);  // 0 .. 40 ms every 50 µs
 }

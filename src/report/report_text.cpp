@@ -9,6 +9,7 @@
 
 #include "netfold/report.hpp"
 #include "netfold/units.hpp"
+#include "report/explain_states.hpp"
 #include "response/forced_response.hpp"
 #include "response/terms.hpp"
 
@@ -304,6 +305,10 @@ void write_solve_text(std::ostream& out, const SolveReport& report) {
 void write_explanation(std::ostream& out, const Solution& sol) {
   const Circuit& c = sol.circuit();
   fmt::print(out, "\nderivation\n");
+  if (sol.several_states()) {
+    detail::write_states_explanation(out, sol, terms_expression);
+    return;
+  }
   if (sol.storage() == kNone) {
     fmt::print(out, "  no capacitor or inductor: each segment is a resistive network; every quantity is a fixed\n"
                     "  combination of the source values, y(t) = Σ k_j·u_j(t), solved once per segment by MNA\n");

@@ -11,6 +11,7 @@
 
 #include "netfold/units.hpp"
 #include "response/range.hpp"
+#include "response/terms.hpp"
 #include "response/solve_support.hpp"
 #include "response/test_seams.hpp"
 
@@ -105,19 +106,20 @@ Figures compute_figures(const Solution& solution, const Observable& obs) {
       f.amplitude = std::abs(p);
       if (std::abs(p) > 0.0) f.phase = std::arg(p);
     }
-    // Several storage elements: the settling time is not computed yet (nothing printed for it).
-    if (pieces.back().has_terms()) {
-      f.steady_peak = steady_peak(*f.steady);
-      return f;
-    }
-    // Settling: after the last event, y − y_ss = D·e^{a(t − t0)}.
-    double d = last.a < 0.0 ? last.transient + last.drift / last.a : (last.a == 0.0 ? 0.0 : last.transient);
     double reference = steady_peak(*f.steady);
     f.steady_peak = reference;
     // A steady state that is zero but for rounding (a capacitor current under DC) would make
     // the 1 % criterion measure noise: such a steady state counts as zero.
     if (reference <= 1e-9 * f.peak) reference = f.peak;
     double threshold = 0.01 * reference;
+    // Several storage elements: the last time |y − y_ss| reaches the band, found on the terms.
+    if (pieces.back().has_terms()) {
+      if (threshold > 0.0)
+        if (auto e = response::transient_part(*pieces.back().terms_f)) f.settling_time = response::settling_time(*e, threshold);
+      return f;
+    }
+    // Settling: after the last event, y − y_ss = D·e^{a(t − t0)}.
+    double d = last.a < 0.0 ? last.transient + last.drift / last.a : (last.a == 0.0 ? 0.0 : last.transient);
     if (d == 0.0 || std::fabs(d) <= threshold) {
       f.settling_time = 0.0;
     } else if (last.a < 0.0 && threshold > 0.0) {

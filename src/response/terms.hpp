@@ -130,4 +130,15 @@ std::optional<double> first_fall(const Response& y, double level, double from, d
 /// The same for the product f·g (an instantaneous power).
 Extremes find_extremes_of_product(const Response& f, const Response& g, double from, double to);
 
+/// y − y_ss: the decaying terms of y alone (the constant, the phasors and the undamped terms
+/// with k = 0 are its steady state); nothing when y has no steady state (Response::steady_state).
+std::optional<Response> transient_part(const Response& y);
+
+/// The settling time of a decaying response e (transient_part): the time after e.t0 from which
+/// |e| stays below `level` > 0 for good. It is 0 when |e| < level from the start. The search
+/// runs to where a bound on |e| (Σ|c|·s^k·e^{Re z·s}) falls below the level for good, brackets
+/// the last excursion to the level on find_extremes' grid, and refines the crossing by bisection
+/// to rounding. Nothing when a term does not decay.
+std::optional<double> settling_time(const Response& e, double level);
+
 }  // namespace netfold::response
