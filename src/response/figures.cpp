@@ -45,6 +45,13 @@ Extremes extremes_over(const std::vector<Piece>& pieces, double from, double to)
 
 double lowest_frequency(const Circuit& c) { return slowest_frequency(c); }
 
+// Diodes with a sinusoidal source: conduction intervals repeat every period, so no segment's
+// own steady state is the circuit's.
+bool switches_periodically(const Solution& solution) {
+  return !solution.segments().empty() && !solution.segments().back().positions.diodes.empty() &&
+         lowest_frequency(solution.circuit()) > 0.0;
+}
+
 double steady_peak(const Drive& d) {
   if (d.phasors.empty()) return std::fabs(d.dc);
   Wave w;
@@ -94,6 +101,9 @@ Figures compute_figures(const Solution& solution, const Observable& obs) {
     }
   if (obs.kind == ObservableKind::element_power) return f;
 
+  // Diodes on an AC supply keep changing state: the last segment's own steady state is not the
+  // circuit's (that is periodic, with conduction intervals), so none is reported.
+  if (switches_periodically(solution)) return f;
   const Wave& last = pieces.back().f;
   f.steady = steady_state_of(pieces.back());
   if (f.steady) {
@@ -188,6 +198,18 @@ double element_mean_power(const Solution& solution, ElementId id, int* segment) 
   const Window& win = solution.window();
   auto v = solution.pieces(element_observable(c, id, ObservableKind::element_voltage));
   auto i = solution.pieces(element_observable(c, id, ObservableKind::element_current));
+  if (switches_periodically(solution)) {
+    // Diodes on an AC supply: the sustained dissipation is the mean over the window's last
+    // whole period of the fundamental (the whole window where it is shorter than a period).
+    const double from = std::max(win.from, win.to - 1.0 / lowest_frequency(c));
+    double energy = 0.0;
+    for (std::size_t k = 0; k < v.size(); ++k) {
+      const double a = std::max(from, v[k].t0()), b = std::min(win.to, v[k].t1());
+      if (a < b) energy += integral_of_product(v[k], i[k], a, b);
+    }
+    if (segment) *segment = static_cast<int>(v.size());
+    return win.to > from ? energy / (win.to - from) : 0.0;
+  }
   // Sustained dissipation (spec v2, "Ratings"): the largest over the segments of each one's
   // steady-state mean, whatever the window, so that a resistor that dissipates only while a
   // contact is closed is judged by that dissipation, not by the last segment or the window.
