@@ -181,6 +181,9 @@ std::string render_svg_map(const MapData& d) {
   double lo = kHuge, hi = -kHuge;
   for (double v : d.z)
     if (std::isfinite(v)) lo = std::min(lo, v), hi = std::max(hi, v);
+  // The colour scale spans at least 1 % of the largest value: differences at the level of
+  // rounding are not stretched over the whole scale (a near-constant map reads as one colour).
+  if (!flat(lo, hi)) lo = std::min(lo, hi - 0.01 * std::max(std::fabs(hi), std::fabs(lo)));
   const Frame f{d.x.front(), d.x.back(), d.y.front(), d.y.back()};
   const std::vector<double> ex = edges(d.x), ey = edges(d.y);
   put(out, "<g class=\"cells\" shape-rendering=\"crispEdges\">\n");

@@ -24,10 +24,17 @@ struct Axis {
   double scale = 1.0;  ///< display units per SI unit
 };
 
-Axis target_axis(const Circuit& c, const Sweep& sw, bool time_in_ms) {
+// `prefixed`: a time, voltage or current axis in the SI prefix that suits its largest value
+// (the map's plain tick numbers: 0.14 A reads better as 140 mA).
+Axis target_axis(const Circuit& c, const Sweep& sw, bool prefixed) {
   if (sw.target == SweepTarget::source_phase) return {sw.text, "°", 180.0 / std::numbers::pi};
-  if (sw.target == SweepTarget::switch_closes && time_in_ms && sw.to - sw.from < 1.0) return {sw.text, "ms", 1e3};
-  return {sw.text, sweep_argument_unit(c, sw), 1.0};
+  const std::string unit = sweep_argument_unit(c, sw);
+  const double largest = std::max(std::fabs(sw.from), std::fabs(sw.to));
+  if (!prefixed || largest == 0.0) return {sw.text, unit, 1.0};
+  if (largest >= 1e3) return {sw.text, "k" + unit, 1e-3};
+  if (largest >= 1.0) return {sw.text, unit, 1.0};
+  if (largest >= 1e-3) return {sw.text, "m" + unit, 1e3};
+  return {sw.text, "µ" + unit, 1e6};
 }
 
 Axis axis_of(const Circuit& c, const SweepResult& res) {

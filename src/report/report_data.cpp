@@ -258,9 +258,8 @@ PlotData plot_data(const Solution& sol) {
       if (-f.min > 0.3 * *limit) d.levels.push_back({unit, -*limit, "", true});
     }
   }
-  // Events: every segment that starts with a change, the one at the window's start included.
   for (const auto& s : sol.segments()) {
-    if (s.changes.empty() || s.from < sol.window().from) continue;
+    if (s.changes.empty() || s.from <= sol.window().from) continue;
     d.events.push_back(s.from);
     std::string label;
     for (const auto& ch : s.changes) label += (label.empty() ? "" : ", ") + ch;
