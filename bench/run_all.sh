@@ -11,7 +11,7 @@
 # baseline.json (every executable's JSON merged: one "context", all "benchmarks").
 #
 # Environment: NETFOLD_BENCH_TMP (scratch for generated files, default /tmp/netfold_bench),
-# BENCH_ONLY (space-separated subset of: solve sweep factor parse spsolve memory),
+# BENCH_ONLY (space-separated subset of: solve sweep factor parse spsolve worst_box memory),
 # BENCH_MEMORY_SIZES (grid sizes of (e), default "1000 10000 100000 1000000"),
 # BENCH_ARGS (extra flags for every bench_* executable, e.g. --benchmark_filter=...).
 # Needs /usr/bin/time (Debian package `time`) and /usr/bin/python3 with python3-scipy.
@@ -23,7 +23,7 @@ out=${2:-$build/bench-results}
 mkdir -p "$out"
 export NETFOLD_BENCH_TMP=${NETFOLD_BENCH_TMP:-/tmp/netfold_bench}
 mkdir -p "$NETFOLD_BENCH_TMP"
-only=${BENCH_ONLY:-solve sweep factor parse spsolve memory}
+only=${BENCH_ONLY:-solve sweep factor parse spsolve worst_box memory}
 read -r -a extra <<< "${BENCH_ARGS:-}"
 
 wants() { [[ " $only " == *" $1 "* ]]; }
@@ -55,7 +55,7 @@ run_bench() {
   echo "load average after bench_$name: $(cut -d' ' -f1-3 /proc/loadavg)" >> "$out/machine.txt"
 }
 
-for b in solve sweep factor parse spsolve; do
+for b in solve sweep factor parse spsolve worst_box; do
   if wants "$b"; then run_bench "$b"; fi
 done
 
