@@ -500,3 +500,19 @@ TEST_CASE("worst's map of a two-target sweep colours the peak over both argument
   // Each scale tick carries the unit.
   for (const std::string& t : texts(svg, "scale-tick")) CHECK(t.back() == 'A');
 }
+
+TEST_CASE("a marker between samples is a point of its drawn trace", "[plot]") {
+  // A spike narrower than the sample spacing: the samples miss it, the marker does not, and
+  // the trace is drawn through the marker.
+  PlotData d;
+  d.series.push_back({"@a", "V", {0.0, 1.0, 2.0}, {0.0, 1.0, 0.0}});
+  d.markers.push_back({0, 1.2, 10.0, "peak 10 V at 1.2 s"});
+  const std::string svg = render_svg_plot(d);
+  auto marker = elements(svg, "<circle class=\"marker\"");
+  REQUIRE(marker.size() == 1);
+  const std::string point = attribute(marker.front(), "cx") + "," + attribute(marker.front(), "cy");
+  auto trace = elements(svg, "<path class=\"trace\"");
+  REQUIRE(trace.size() == 1);
+  CHECK(attribute(trace.front(), "d").find(point) != std::string::npos);
+  CHECK(texts(svg, "marker-label") == std::vector<std::string>{"peak 10 V at 1.2 s"});
+}

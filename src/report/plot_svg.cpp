@@ -469,9 +469,8 @@ void draw_panel(std::string& out, const PlotData& data, const Layout& L, std::si
   put(out, "</g>\n");
 }
 
-}  // namespace
-
-std::string render_svg_plot(const PlotData& data) {
+// The renderer proper: the markers' points are already part of their series.
+std::string render_svg_plot_marked(const PlotData& data) {
   Layout L;
   find_time_range(data, L);
   group_panels(data, L);
@@ -495,6 +494,29 @@ std::string render_svg_plot(const PlotData& data) {
   }
   put(out, "</svg>\n");
   return out;
+}
+
+// The data with each marker's point added to its series, so that the trace passes through
+// it: a spike narrower than the sample spacing would otherwise be drawn short of its marker.
+PlotData with_marked_points(const PlotData& data) {
+  PlotData d = data;
+  for (const PlotMarker& m : data.markers) {
+    if (m.series >= d.series.size() || !std::isfinite(m.t) || !std::isfinite(m.v)) continue;
+    PlotSeries& s = d.series[m.series];
+    const std::size_t n = sample_count(s);
+    s.t.resize(n);
+    s.v.resize(n);
+    const auto k = std::upper_bound(s.t.begin(), s.t.end(), m.t) - s.t.begin();
+    s.t.insert(s.t.begin() + k, m.t);
+    s.v.insert(s.v.begin() + k, m.v);
+  }
+  return d;
+}
+
+}  // namespace
+
+std::string render_svg_plot(const PlotData& data) {
+  return data.markers.empty() ? render_svg_plot_marked(data) : render_svg_plot_marked(with_marked_points(data));
 }
 
 }  // namespace netfold
