@@ -170,7 +170,9 @@ std::string worst_json(const WorstReport& report, const Circuit& circuit);
 std::string worst_csv(const WorstReport& report);
 /// (v2) The SVG of `worst --svg`: per sweep, the peak of every watched quantity against the
 /// first target's argument (a joint or toleranced sweep: with the other values at the worst
-/// point of that quantity), its steady-state peak as a dashed line, worst and best marked.
+/// point of that quantity), its steady-state peak and rating as labelled dashed lines, worst
+/// and best marked and labelled; for a line of two targets, a map of each quantity's peak over
+/// both arguments with a colour scale, the worst and best marked.
 std::string worst_svg(const WorstReport& report, const Circuit& circuit);
 
 }  // namespace netfold
