@@ -11,3 +11,10 @@ add_test(NAME figures_baseline
          COMMAND /usr/bin/python3 ${PROJECT_SOURCE_DIR}/tests/figures_baseline.py compare
                  $<TARGET_FILE:netfold> ${PROJECT_SOURCE_DIR})
 set_tests_properties(figures_baseline PROPERTIES TIMEOUT 600 LABELS "baseline")
+
+# The peak's distribution over a random closing angle (exact and Monte Carlo) against a dense
+# evaluation of the closed form of a series RC and the same seeded samples computed in Python
+# (tests/scipy_rc_closing.py). It exits 77, a skip, where SciPy is absent.
+add_test(NAME scipy_rc_closing
+         COMMAND /usr/bin/python3 ${PROJECT_SOURCE_DIR}/tests/scipy_rc_closing.py $<TARGET_FILE:netfold>)
+set_tests_properties(scipy_rc_closing PROPERTIES SKIP_RETURN_CODE 77 TIMEOUT 600 LABELS "scipy;worst")

@@ -8,6 +8,7 @@
 
 #include "engine_helpers.hpp"
 #include "netfold/distribution.hpp"
+#include "netfold/worst.hpp"
 
 using namespace netfold;
 
@@ -43,6 +44,68 @@ TEST_CASE("the share of the range where |cos φ| exceeds a level is 2·arccos(le
   CHECK_REL(curve_share_above(x, y, 0.5), 2.0 / 3.0, 1e-6);
   CHECK(curve_share_above(x, y, 1.5) == 0.0);
   CHECK(curve_share_above(x, y, -1.0) == 1.0);
+}
+
+TEST_CASE("percentiles from the crossings of the function are exact where the linear curve is not", "[worst]") {
+  // |cos φ| over [0, π] at six uneven points and its minimum at π/2: the percentiles are
+  // cos((1 − q)·π/2) (derived by hand, as above), found here from the crossings of |cos| itself.
+  auto f = [](double t) { return std::fabs(std::cos(t)); };
+  std::vector<double> x{0.0, 0.4, 1.1, kPi / 2, 1.9, 2.5, kPi}, y;
+  for (double t : x) y.push_back(f(t));
+  for (double q : {0.25, 0.5, 0.9, 0.99}) {
+    INFO("q = " << q);
+    const double exact = std::cos((1.0 - q) * kPi / 2.0);
+    CHECK_REL(function_percentile(f, x, y, q), exact, 1e-10);
+    // The piecewise-linear curve through the same points misses by far more.
+    CHECK(std::fabs(curve_percentile(x, y, q) - exact) > 1e-3);
+  }
+  CHECK_REL(function_share_above(f, x, y, 0.5), 2.0 / 3.0, 1e-10);
+  CHECK(function_share_above(f, x, y, 1.5) == 0.0);
+  CHECK(function_share_above(f, x, y, -1.0) == 1.0);
+}
+
+TEST_CASE("a flat stretch of the function is its percentile where it holds the share", "[worst]") {
+  // min(x, 1) over [0, 2]: a half of the range sits at 1, so every q ≥ ½ gives 1 and q = ¼
+  // gives ½ (derived by hand).
+  auto f = [](double t) { return std::min(t, 1.0); };
+  std::vector<double> x{0.0, 0.7, 1.3, 2.0}, y;
+  for (double t : x) y.push_back(f(t));
+  CHECK_REL(function_percentile(f, x, y, 0.25), 0.5, 1e-10);
+  CHECK_REL(function_percentile(f, x, y, 0.5), 1.0, 1e-10);
+  CHECK_REL(function_percentile(f, x, y, 0.9), 1.0, 1e-10);
+}
+
+TEST_CASE("a one-target sweep's percentiles come from the solved peak between coarse grid points", "[worst]") {
+  // A 1 F capacitor holding V0 discharges through 1 ohm: the peaks are |v_C| = |V0| and the
+  // resistor's power V0²/R, both at t = 0 (derived by hand). V0 uniform on [−1 V, 3 V]:
+  // P(|V0| ≤ u) = u/2 for u ≤ 1 and (1 + u)/4 for 1 ≤ u ≤ 3, so the q-quantile of |V0| is 2q
+  // (q ≤ ½) or 4q − 1: p50 = 1 V, p90 = 2.6 V, p99 = 2.96 V; of the power, their squares over
+  // 1 ohm: 1 W, 6.76 W, 8.7616 W. |V0| > 2 V (the rating) on a quarter of the range; the power
+  // exceeds 0.25 W where |V0| > 0.5 V, on three quarters. A grid step of 0.7 V puts no grid point
+  // at 0, 2.6 or 2.96: interpolating the grid would miss the power's percentiles by up to 0.5 %.
+  Circuit c = parse_netlist(
+      "C1: capacitor a -> gnd, 1 F, initial 0 V, rated 2 V\nR1: resistor a -> gnd, 1 ohm\n"
+      "watch C1.v, R1.p\nsweep C1.initial -1 V .. 3 V step 0.7 V\n",
+      "discharge.nf");
+  WorstOptions o;
+  o.share_levels.push_back({"R1.p", 0.25});
+  WorstReport r = find_worst_case(c, c.sweeps(), o);
+  REQUIRE(r.sweeps.size() == 1);
+  const SweepResult& s = r.sweeps.front();
+  REQUIRE(s.observables.size() == 2);
+  const PeakDistribution& v = s.observables[0].distribution;
+  const PeakDistribution& p = s.observables[1].distribution;
+  CHECK_REL(v.p50, 1.0, 1e-9);
+  CHECK_REL(v.p90, 2.6, 1e-9);
+  CHECK_REL(v.p99, 2.96, 1e-9);
+  CHECK_REL(p.p50, 1.0, 1e-9);
+  CHECK_REL(p.p90, 6.76, 1e-9);
+  CHECK_REL(p.p99, 8.7616, 1e-9);
+  REQUIRE(s.exceeded_share.size() == 1);
+  CHECK_REL(s.exceeded_share[0], 0.25, 1e-9);
+  REQUIRE(s.shares.size() == 1);
+  CHECK_REL(s.shares[0].share, 0.75, 1e-9);
+  CHECK(s.observables[1].best == Approx(0.0).margin(1e-12));  // the minimum at V0 = 0, off the grid
 }
 
 TEST_CASE("equal weights give the order statistic of rank ceil(q·n)", "[worst]") {

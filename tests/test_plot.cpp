@@ -16,7 +16,10 @@
 #include <unistd.h>
 
 #include "temp_dir.hpp"
+#include "netfold/parse.hpp"
 #include "netfold/plot.hpp"
+#include "netfold/report.hpp"
+#include "netfold/worst.hpp"
 
 using namespace netfold;
 
@@ -403,4 +406,113 @@ TEST_CASE("the same data renders to the same bytes, with '.' decimals whatever t
   std::string german = render_svg_plot(d);
   std::locale::global(saved);
   CHECK(german == first);
+}
+
+namespace {
+
+// The x and y attributes of an SVG element as numbers.
+std::pair<double, double> position(const std::string& element, const char* x = "x", const char* y = "y") {
+  return {std::stod(attribute(element, x)), std::stod(attribute(element, y))};
+}
+
+}  // namespace
+
+TEST_CASE("solve's plot marks the peak of each trace with its value and time, its rating and the events", "[plot]") {
+  // A 10 V source charges 1 µF through 1 kohm from 1 ms (τ = 1 ms): the largest |v_C| in the
+  // window 0 .. 6 ms is at its end, 10 V·(1 − e⁻⁵) = 9.933 V (derived by hand).
+  Circuit c = parse_netlist("V1: voltage-source a -> gnd, dc 10 V\nK1: switch a -> b, closes at 1 ms\n"
+                            "R1: resistor b -> c, 1 kohm\nC1: capacitor c -> gnd, 1 uF, initial 0 V, rated 16 V\n"
+                            "watch C1.v\nwindow 0 .. 6 ms\n",
+                            "rc_charge.nf");
+  const std::string svg = render_svg_plot(plot_data(solve(c)));
+  CHECK(texts(svg, "marker-label") == std::vector<std::string>{"peak 9.933 V at 6 ms"});
+  auto marker = elements(svg, "<circle class=\"marker\"");
+  REQUIRE(marker.size() == 1);
+  CHECK(position(marker.front(), "cx", "cy").first == Approx(880.0));  // the right end of the time axis
+  CHECK(texts(svg, "level-label") == std::vector<std::string>{"C1 rated 16 V"});
+  auto rating = elements(svg, "<line class=\"rating\"");
+  REQUIRE(rating.size() == 1);
+  // The rating's line lies above the peak (a smaller y), inside the plot area.
+  CHECK(std::stod(attribute(rating.front(), "y1")) < position(marker.front(), "cx", "cy").second);
+  CHECK(texts(svg, "event-label") == std::vector<std::string>{"K1 closes"});
+}
+
+TEST_CASE("a level far beyond a panel's values is named off scale instead of flattening the traces", "[plot]") {
+  PlotData d;
+  d.series.push_back(ramp("C1.v", "V", 1.0, 0.0, 1.0));
+  d.levels.push_back({"V", 100.0, "C1 rated 100 V", true});
+  d.levels.push_back({"V", 1.5, "C1.v steady peak 1.5 V", false});
+  d.levels.push_back({"A", 1.0, "no panel in A", true});
+  const std::string svg = render_svg_plot(d);
+  CHECK(texts(svg, "level-label") == std::vector<std::string>{"C1.v steady peak 1.5 V", "C1 rated 100 V (off scale, above)"});
+  CHECK(elements(svg, "<line class=\"rating\"").empty());
+  CHECK(elements(svg, "<line class=\"level\"").size() == 1);
+  // The panel reaches the drawn level, with room for its label: its top tick is above 1.5 V.
+  CHECK(texts(svg, "ytick").back() == "2 V");
+}
+
+TEST_CASE("worst's plot marks the worst and best on the curve with their values and arguments", "[plot]") {
+  // A capacitor holding V0 discharges through a resistor: its peak |v| is V0 (derived by hand),
+  // worst 3 V at V0 = 3 V, best 500 mV at 0.5 V; the rating of 2 V and the steady peak 0 V are lines.
+  Circuit c = parse_netlist("C1: capacitor a -> gnd, 1 uF, initial 1 V, rated 2 V\nR1: resistor a -> gnd, 1 kohm\n"
+                            "watch C1.v\nsweep C1.initial 0.5 V .. 3 V step 0.25 V\n",
+                            "discharge.nf");
+  const std::string svg = worst_svg(find_worst_case(c, c.sweeps()), c);
+  CHECK(texts(svg, "marker-label") ==
+        std::vector<std::string>{"worst C1.v 3 V at 3 V", "best C1.v 500 mV at 500 mV"});
+  CHECK(texts(svg, "level-label") == std::vector<std::string>{"C1.v steady peak 0 V", "C1 rated 2 V"});
+  CHECK(texts(svg, "axis-label") == std::vector<std::string>{"C1.initial (V)"});
+}
+
+TEST_CASE("worst's map of a two-target sweep colours the peak over both arguments and marks the worst", "[plot]") {
+  // 325 V closed through 10 ohm onto 10 µF holding V0 (τ = 100 µs, far below the period): the
+  // contact current's peak is its jump, |325 V·cos φ − V0| / 10 ohm (derived by hand), worst
+  // 42.5 A at φ = 0, V0 = −100 V or at φ = ±180°, V0 = +100 V.
+  Circuit c = parse_netlist("supply: voltage-source s -> gnd, cosine 325 V 50 Hz\nK1: switch s -> a, closes at 0 s\n"
+                            "R1: resistor a -> b, 10 ohm\nC1: capacitor b -> gnd, 10 uF\nwatch K1.i\n"
+                            "sweep supply.phase -180 deg .. 180 deg, C1.initial -100 V .. 100 V\n",
+                            "closing.nf");
+  const std::string svg = worst_svg(find_worst_case(c, c.sweeps()), c);
+  // The profile, then one map: 37 × 37 cells (36 intervals on each target of a joint line).
+  const auto cells_at = svg.find("<g class=\"cells\"");
+  REQUIRE(cells_at != std::string::npos);
+  CHECK(count_of(svg.substr(cells_at, svg.find("</g>", cells_at) - cells_at), "<rect ") == 37 * 37);
+  CHECK(texts(svg, "scale-label") == std::vector<std::string>{"K1.i peak (A)"});
+  const auto axes = texts(svg, "axis-label");
+  CHECK(std::count(axes.begin(), axes.end(), "supply.phase (°)") == 2);  // the profile and the map
+  CHECK(std::count(axes.begin(), axes.end(), "C1.initial (V)") == 1);
+  const auto labels = texts(svg, "mark-label");
+  REQUIRE(labels.size() == 2);
+  CHECK(labels[0] == "worst 42.5 A");
+  CHECK(labels[1].rfind("best ", 0) == 0);
+  CHECK(count_of(svg, "class=\"mark-best\"") == 1);
+  // The worst's ring sits on one of the two maxima: (0°, −100 V) is (408, 410) px, (±180°, 100 V)
+  // the top corners (96 or 720, 80) of the 96..720 × 80..410 px map.
+  auto ring = elements(svg, "<circle class=\"mark-worst\"");
+  REQUIRE(ring.size() == 1);
+  const auto [x, y] = position(ring.front(), "cx", "cy");
+  const bool at_maximum = (std::fabs(x - 408.0) < 0.5 && std::fabs(y - 410.0) < 0.5) ||
+                          ((std::fabs(x - 96.0) < 0.5 || std::fabs(x - 720.0) < 0.5) && std::fabs(y - 80.0) < 0.5);
+  CHECK(at_maximum);
+  const auto notes = texts(svg, "note");
+  REQUIRE(!notes.empty());
+  CHECK(notes.front().rfind("○ worst 42.5 A at supply.phase = ", 0) == 0);
+  // Each scale tick carries the unit.
+  for (const std::string& t : texts(svg, "scale-tick")) CHECK(t.back() == 'A');
+}
+
+TEST_CASE("a marker between samples is a point of its drawn trace", "[plot]") {
+  // A spike narrower than the sample spacing: the samples miss it, the marker does not, and
+  // the trace is drawn through the marker.
+  PlotData d;
+  d.series.push_back({"@a", "V", {0.0, 1.0, 2.0}, {0.0, 1.0, 0.0}});
+  d.markers.push_back({0, 1.2, 10.0, "peak 10 V at 1.2 s"});
+  const std::string svg = render_svg_plot(d);
+  auto marker = elements(svg, "<circle class=\"marker\"");
+  REQUIRE(marker.size() == 1);
+  const std::string point = attribute(marker.front(), "cx") + "," + attribute(marker.front(), "cy");
+  auto trace = elements(svg, "<path class=\"trace\"");
+  REQUIRE(trace.size() == 1);
+  CHECK(attribute(trace.front(), "d").find(point) != std::string::npos);
+  CHECK(texts(svg, "marker-label") == std::vector<std::string>{"peak 10 V at 1.2 s"});
 }

@@ -14,6 +14,7 @@
 /// \endcode
 
 #include <cstdint>
+#include <functional>
 #include <optional>
 #include <random>
 #include <vector>
@@ -29,6 +30,22 @@ double curve_percentile(const std::vector<double>& x, const std::vector<double>&
 /// The share (0..1) of [x.front(), x.back()] in which the piecewise-linear curve through the
 /// points exceeds `level`.
 double curve_share_above(const std::vector<double>& x, const std::vector<double>& y, double level);
+
+/// (v2) The q-quantile (0 ≤ q ≤ 1) of f(x) for x uniform on [x.front(), x.back()], exact up to
+/// the tolerances below: from the crossings of f itself, not of an interpolation. (x, y) are
+/// points of f (x increasing, y = f(x), length ≥ 2) that include every local extreme of f, so
+/// that f is monotone between neighbours. The level L at which the measure of {x : f(x) ≤ L}
+/// is q of the range is found by the Illinois variant of regula falsi on L (to 1e-12 of the
+/// curve's span), each measure from the crossings of f with L, every one located by the same
+/// method on f between the two neighbouring points that bracket it (to 1e-12 of the range).
+/// The piecewise-linear percentile through the points is the starting guess.
+double function_percentile(const std::function<double(double)>& f, const std::vector<double>& x,
+                           const std::vector<double>& y, double q);
+
+/// (v2) The share (0..1) of [x.front(), x.back()] in which f exceeds `level`, from the
+/// crossings of f with the level (points as for function_percentile).
+double function_share_above(const std::function<double(double)>& f, const std::vector<double>& x,
+                            const std::vector<double>& y, double level);
 
 /// The q-quantile of values carrying weights (≥ 0, any sum > 0): the smallest value at which
 /// the cumulative weight of the sorted values reaches q of the total. With equal weights and

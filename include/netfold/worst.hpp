@@ -84,6 +84,12 @@ struct SweepResult {
   /// [observable][grid point]: peak |y| along `grid`; for a joint or toleranced search, the
   /// profile through the worst point of each observable (the other arguments at their worst).
   std::vector<std::vector<double>> grid_peaks;
+  /// (v2) A line of two targets: the second target's grid, and per observable the peak at every
+  /// point of the two targets' grid, [observable][i + j·grid.size()] (i along `grid`, j along
+  /// `map_grid`); with tolerances, the largest over the tolerance box's grid at that point.
+  /// Empty otherwise.
+  std::vector<double> map_grid;
+  std::vector<std::vector<double>> map_peaks;      ///< see map_grid
   std::vector<SweepExtreme> ratings;               ///< one per rating of the circuit
   std::vector<std::size_t> rating_index;           ///< index into check_ratings order
   std::vector<double> exceeded_share;              ///< (v2) per rating: the share in which it is exceeded
@@ -164,7 +170,9 @@ std::string worst_json(const WorstReport& report, const Circuit& circuit);
 std::string worst_csv(const WorstReport& report);
 /// (v2) The SVG of `worst --svg`: per sweep, the peak of every watched quantity against the
 /// first target's argument (a joint or toleranced sweep: with the other values at the worst
-/// point of that quantity), its steady-state peak as a dashed line, worst and best marked.
+/// point of that quantity), its steady-state peak and rating as labelled dashed lines, worst
+/// and best marked and labelled; for a line of two targets, a map of each quantity's peak over
+/// both arguments with a colour scale, the worst and best marked.
 std::string worst_svg(const WorstReport& report, const Circuit& circuit);
 
 }  // namespace netfold

@@ -6,15 +6,23 @@
 #include <cstddef>
 #include <iterator>
 #include <string_view>
+#include <tuple>
 #include <utility>
 
 #include <fmt/format.h>
 
 #include "netfold/units.hpp"
+#include "report/plot_axes.hpp"
 #include "report/xml_text.hpp"
 
 namespace netfold {
 namespace {
+
+using detail::choose_ticks;
+using detail::put;
+using detail::text_width;
+using detail::Ticks;
+using detail::value_tick_label;
 
 // Page geometry, px. The plot area spans the page width less room for the y tick labels.
 constexpr double kWidth = 900.0;
@@ -30,10 +38,7 @@ constexpr double kPanelGap = 18.0;
 constexpr double kAxisLabelBand = 24.0;
 constexpr double kFontSize = 12.0;
 constexpr double kSmallFontSize = 10.0;
-constexpr double kTitleFontSize = 16.0;
 constexpr int kMaxEventRows = 4;
-constexpr int kMinTicks = 4;
-constexpr int kMaxTicks = 8;
 constexpr double kHuge = 1e300;  // axis ranges are clamped to ±kHuge
 
 // Okabe–Ito colours (distinguishable with the common colour-vision deficiencies; yellow left
@@ -41,73 +46,7 @@ constexpr double kHuge = 1e300;  // axis ranges are clamped to ±kHuge
 constexpr std::array<std::string_view, 8> kPalette{"#0072b2", "#d55e00", "#009e73", "#cc79a7",
                                                    "#e69f00", "#56b4e9", "#000000", "#882255"};
 
-template <typename... Args>
-void put(std::string& out, fmt::format_string<Args...> format, Args&&... args) {
-  fmt::format_to(std::back_inserter(out), format, std::forward<Args>(args)...);
-}
-
 std::string escape_xml(std::string_view s) { return detail::escape_xml(s, detail::XmlControls::svg_line); }
-
-// Rough rendered width of a sans-serif string; used only to lay out legends and labels.
-double text_width(std::string_view s, double font_size) {
-  std::size_t code_points = 0;
-  for (char c : s)
-    if ((static_cast<unsigned char>(c) & 0xC0) != 0x80) ++code_points;
-  return static_cast<double>(code_points) * font_size * 0.6;
-}
-
-// Nice ticks: multiples of step = mantissa × 10^exponent, mantissa ∈ {1, 2, 5}.
-struct Ticks {
-  double lo = 0.0, hi = 1.0;  ///< axis range
-  double step = 1.0;
-  int exponent = 0;           ///< of the step
-  long first = 0, last = 0;   ///< tick i is at i × step
-
-  double at(long i) const { return static_cast<double>(i) * step; }
-  int count() const { return static_cast<int>(last - first + 1); }
-};
-
-double step_value(int mantissa, int exponent) {
-  // Dividing by an exact power of ten keeps 0.2, 0.05 ... as close as a double can be.
-  return exponent >= 0 ? mantissa * std::pow(10.0, exponent) : mantissa / std::pow(10.0, -exponent);
-}
-
-// `extend` widens [lo, hi] out to whole steps (the value axes); otherwise the range stays put
-// and only the multiples inside it are ticks (the time axis starts where the data starts).
-// Takes the finest step with kMinTicks..kMaxTicks ticks, else the finest with at most kMaxTicks.
-Ticks choose_ticks(double lo, double hi, bool extend) {
-  constexpr double kSlack = 1e-9;  // so that 0.30000000000000004 still counts as 3 × 0.1
-  const int base = static_cast<int>(std::floor(std::log10(hi - lo))) - 1;
-  constexpr std::array<int, 3> kMantissas{1, 2, 5};
-  Ticks fallback;
-  bool have_fallback = false;
-  for (int exponent = base; exponent <= base + 3; ++exponent) {
-    for (int mantissa : kMantissas) {
-      Ticks t;
-      t.step = step_value(mantissa, exponent);
-      t.exponent = exponent;
-      if (extend) {
-        t.first = static_cast<long>(std::floor(lo / t.step + kSlack));
-        t.last = static_cast<long>(std::ceil(hi / t.step - kSlack));
-        t.lo = t.at(t.first);
-        t.hi = t.at(t.last);
-      } else {
-        t.first = static_cast<long>(std::ceil(lo / t.step - kSlack));
-        t.last = static_cast<long>(std::floor(hi / t.step + kSlack));
-        t.lo = lo;
-        t.hi = hi;
-      }
-      int n = t.count();
-      if (n > kMaxTicks) continue;
-      if (n >= kMinTicks) return t;
-      if (!have_fallback) {
-        fallback = t;
-        have_fallback = true;
-      }
-    }
-  }
-  return fallback;
-}
 
 // Value-axis range of a panel. A constant (or all-zero) panel still needs a non-empty range:
 // draw it from zero to the constant, or ±1 around zero.
@@ -144,18 +83,11 @@ std::string time_tick_label(const Ticks& ticks, long i) {
   return fmt::format("{:.{}f}", ticks.at(i), decimals);
 }
 
-std::string value_tick_label(const Ticks& ticks, long i, std::string_view unit) {
-  if (i == 0) return "0";
-  // Ticks are whole multiples of 10^exponent, so this many significant digits shows each
-  // tick exactly and no two ticks print alike.
-  double largest = std::max(std::fabs(ticks.lo), std::fabs(ticks.hi));
-  int digits = static_cast<int>(std::floor(std::log10(largest))) - ticks.exponent + 1;
-  return format_si(ticks.at(i), unit, std::clamp(digits, 1, 6));
-}
-
 struct Panel {
   std::string unit;
   std::vector<std::size_t> series;  ///< indices into PlotData::series
+  std::vector<std::size_t> levels;  ///< indices into PlotData::levels drawn in this panel
+  std::vector<std::size_t> off_scale;  ///< levels named in the corner instead
   double data_lo = 1.0, data_hi = -1.0;
   Ticks y;
   int legend_rows = 1;
@@ -240,8 +172,30 @@ void group_panels(const PlotData& data, Layout& L) {
       }
     }
   }
+  for (std::size_t k = 0; k < data.levels.size(); ++k) {
+    const PlotLevel& lv = data.levels[k];
+    auto it = std::find_if(L.panels.begin(), L.panels.end(), [&](const Panel& p) { return p.unit == lv.unit; });
+    if (it == L.panels.end() || !std::isfinite(lv.v)) continue;
+    const double largest = std::max(std::fabs(it->data_lo), std::fabs(it->data_hi));
+    if (it->data_lo <= it->data_hi && std::fabs(lv.v) > 3.0 * largest) {
+      it->off_scale.push_back(k);
+      continue;
+    }
+    it->levels.push_back(k);
+  }
   for (Panel& p : L.panels) {
-    auto [lo, hi] = value_range(p.data_lo, p.data_hi);
+    double lo = p.data_lo, hi = p.data_hi;
+    for (std::size_t k : p.levels) {
+      lo = lo > hi ? data.levels[k].v : std::min(lo, data.levels[k].v);
+      hi = std::max(hi, data.levels[k].v);
+    }
+    // Headroom beyond a level, so that its line and label do not sit on the frame.
+    double level_lo = kHuge, level_hi = -kHuge;
+    for (std::size_t k : p.levels) level_lo = std::min(level_lo, data.levels[k].v), level_hi = std::max(level_hi, data.levels[k].v);
+    const double span = hi - lo;
+    if (span > 0.0 && level_hi >= hi) hi += 0.06 * span;
+    if (span > 0.0 && level_lo <= lo) lo -= 0.06 * span;
+    std::tie(lo, hi) = value_range(lo, hi);
     p.y = choose_ticks(lo, hi, true);
   }
 }
@@ -310,6 +264,10 @@ void place_event_labels(const PlotData& data, Layout& L) {
 
 void stack_panels(const PlotData& data, Layout& L) {
   double y = kTopMargin + (data.title.empty() ? 0.0 : kTitleBand);
+  if (!data.title.empty()) {
+    std::string scratch;  // the title's second line, if it needs one, moves the panels down
+    y += detail::draw_title(scratch, data.title, kWidth, 0.0);
+  }
   for (std::size_t k = 0; k < L.panels.size(); ++k) {
     Panel& p = L.panels[k];
     p.legend_rows = lay_out_legend(data, p, [](std::size_t, double, int) {});
@@ -369,6 +327,93 @@ void draw_trace(std::string& out, const Layout& L, const Panel& p, const PlotSer
       d, colour);
 }
 
+// Text on a white, slightly transparent box, so that it reads over grid lines and traces.
+struct Box {
+  double left, top, right, bottom;
+  bool overlaps(const Box& o) const { return left < o.right && o.left < right && top < o.bottom && o.top < bottom; }
+};
+
+Box text_box(double x, double y, const std::string& text, bool end) {
+  const double w = text_width(text, kSmallFontSize);
+  const double left = end ? x - w : x;
+  return {left - 2.0, y - kSmallFontSize, left + w + 2.0, y + 3.0};
+}
+
+void boxed_text(std::string& out, const char* cls, double x, double y, const std::string& text, const char* anchor,
+                std::string_view colour) {
+  const double w = text_width(text, kSmallFontSize);
+  const double left = std::string_view(anchor) == "end" ? x - w : x;
+  put(out, "<rect class=\"label-box\" x=\"{:.2f}\" y=\"{:.2f}\" width=\"{:.2f}\" height=\"{:.2f}\" fill=\"#ffffff\" "
+           "fill-opacity=\"0.85\"/>\n",
+      left - 2.0, y - kSmallFontSize, w + 4.0, kSmallFontSize + 3.0);
+  put(out, "<text class=\"{}\" x=\"{:.2f}\" y=\"{:.2f}\" text-anchor=\"{}\" font-size=\"{}\" fill=\"{}\">{}</text>\n", cls, x,
+      y, anchor, kSmallFontSize, colour, escape_xml(text));
+}
+
+// Levels: a dashed line across the plot, its label above the right end; levels too far off
+// the panel's scale are named in its top right corner.
+std::vector<Box> draw_levels(std::string& out, const PlotData& data, const Panel& p) {
+  std::vector<Box> taken;
+  for (std::size_t k : p.levels) {
+    const PlotLevel& lv = data.levels[k];
+    const double y = y_of(p, lv.v);
+    const char* colour = lv.limit ? "#c0392b" : "#666666";
+    put(out, "<line class=\"{}\" x1=\"{:.2f}\" y1=\"{:.2f}\" x2=\"{:.2f}\" y2=\"{:.2f}\" stroke=\"{}\" stroke-width=\"1.5\" "
+             "stroke-dasharray=\"8,4\"/>\n",
+        lv.limit ? "rating" : "level", kPlotLeft, y, kPlotRight, y, colour);
+    if (lv.label.empty()) continue;
+    const double ly = std::max(y - 4.0, p.plot_top + kSmallFontSize + 2.0);
+    boxed_text(out, "level-label", kPlotRight - 4.0, ly, lv.label, "end", colour);
+    taken.push_back(text_box(kPlotRight - 4.0, ly, lv.label, true));
+  }
+  double y = p.plot_top + kSmallFontSize + 4.0;
+  for (std::size_t k : p.off_scale) {
+    const PlotLevel& lv = data.levels[k];
+    const std::string text = lv.label + (lv.v > 0 ? " (off scale, above)" : " (off scale, below)");
+    boxed_text(out, "level-label", kPlotRight - 4.0, y, text, "end", lv.limit ? "#c0392b" : "#666666");
+    taken.push_back(text_box(kPlotRight - 4.0, y, text, true));
+    y += kSmallFontSize + 4.0;
+  }
+  return taken;
+}
+
+// Markers: a dot on the series, its label beside it: above right, above left, below right or
+// below left, the first that stays inside the plot and clear of the labels already placed.
+void draw_markers(std::string& out, const PlotData& data, const Layout& L, const Panel& p, std::vector<Box> taken) {
+  for (const PlotMarker& m : data.markers) {
+    if (m.series >= data.series.size() || data.series[m.series].unit != p.unit) continue;
+    if (!std::isfinite(m.t) || !std::isfinite(m.v) || m.t < L.t0 || m.t > L.t1) continue;
+    const double x = L.x_of(m.t), y = y_of(p, m.v);
+    const std::string_view colour = kPalette[m.series % kPalette.size()];
+    put(out, "<circle class=\"marker\" cx=\"{:.2f}\" cy=\"{:.2f}\" r=\"4\" fill=\"{}\" stroke=\"#ffffff\" stroke-width=\"1.5\"/>\n",
+        x, y, colour);
+    if (m.label.empty()) continue;
+    const Box plot{kPlotLeft, p.plot_top, kPlotRight, p.plot_top + kPlotHeight};
+    double lx = x + 8.0, ly = y - 8.0;
+    bool end = false;
+    int fallback = -1;  // the first place inside the plot, taken when none is also clear
+    for (int place = 0; place < 4; ++place) {
+      const bool e = place % 2 == 1;
+      const double cx = e ? x - 8.0 : x + 8.0, cy = place < 2 ? y - 8.0 : y + kSmallFontSize + 8.0;
+      const Box b = text_box(cx, cy, m.label, e);
+      const bool inside = b.left >= plot.left && b.right <= plot.right && b.top >= plot.top && b.bottom <= plot.bottom;
+      const bool clear = std::none_of(taken.begin(), taken.end(), [&](const Box& o) { return o.overlaps(b); });
+      if ((place == 0 || (inside && fallback < 0)) || (inside && clear)) lx = cx, ly = cy, end = e;
+      if (inside && fallback < 0) fallback = place;
+      if (inside && clear) break;
+    }
+    // No place both inside and clear: move the label up a row at a time while that clears it.
+    for (int row = 0; row < 4; ++row) {
+      const Box b = text_box(lx, ly, m.label, end);
+      if (std::none_of(taken.begin(), taken.end(), [&](const Box& o) { return o.overlaps(b); })) break;
+      if (b.top - kEventRow < p.plot_top) break;
+      ly -= kEventRow;
+    }
+    boxed_text(out, "marker-label", lx, ly, m.label, end ? "end" : "start", "#222222");
+    taken.push_back(text_box(lx, ly, m.label, end));
+  }
+}
+
 void draw_panel(std::string& out, const PlotData& data, const Layout& L, std::size_t index) {
   const Panel& p = L.panels[index];
   const double bottom = p.plot_top + kPlotHeight;
@@ -417,15 +462,15 @@ void draw_panel(std::string& out, const PlotData& data, const Layout& L, std::si
   }
 
   for (std::size_t k : p.series) draw_trace(out, L, p, data.series[k], kPalette[k % kPalette.size()]);
+  draw_markers(out, data, L, p, draw_levels(out, data, p));
 
   put(out, "<rect class=\"frame\" x=\"{:.2f}\" y=\"{:.2f}\" width=\"{:.2f}\" height=\"{:.2f}\" fill=\"none\" stroke=\"#333333\" stroke-width=\"1\"/>\n",
       kPlotLeft, p.plot_top, kPlotRight - kPlotLeft, kPlotHeight);
   put(out, "</g>\n");
 }
 
-}  // namespace
-
-std::string render_svg_plot(const PlotData& data) {
+// The renderer proper: the markers' points are already part of their series.
+std::string render_svg_plot_marked(const PlotData& data) {
   Layout L;
   find_time_range(data, L);
   group_panels(data, L);
@@ -438,10 +483,7 @@ std::string render_svg_plot(const PlotData& data) {
            "font-family=\"DejaVu Sans, Arial, Helvetica, sans-serif\" font-size=\"{2}\">\n",
       kWidth, L.height, kFontSize);
   put(out, "<rect class=\"background\" x=\"0\" y=\"0\" width=\"{}\" height=\"{}\" fill=\"#ffffff\"/>\n", kWidth, L.height);
-  if (!data.title.empty()) {
-    put(out, "<text class=\"title\" x=\"{:.2f}\" y=\"{:.2f}\" text-anchor=\"middle\" font-size=\"{}\" font-weight=\"bold\">{}</text>\n",
-        kWidth / 2.0, kTopMargin + 18.0, kTitleFontSize, escape_xml(data.title));
-  }
+  if (!data.title.empty()) detail::draw_title(out, data.title, kWidth, kTopMargin + 18.0);
   for (std::size_t k = 0; k < L.panels.size(); ++k) draw_panel(out, data, L, k);
   if (L.panels.empty()) {
     put(out, "<text class=\"no-data\" x=\"{:.2f}\" y=\"{:.2f}\" text-anchor=\"middle\">no waveforms to plot</text>\n",
@@ -452,6 +494,29 @@ std::string render_svg_plot(const PlotData& data) {
   }
   put(out, "</svg>\n");
   return out;
+}
+
+// The data with each marker's point added to its series, so that the trace passes through
+// it: a spike narrower than the sample spacing would otherwise be drawn short of its marker.
+PlotData with_marked_points(const PlotData& data) {
+  PlotData d = data;
+  for (const PlotMarker& m : data.markers) {
+    if (m.series >= d.series.size() || !std::isfinite(m.t) || !std::isfinite(m.v)) continue;
+    PlotSeries& s = d.series[m.series];
+    const std::size_t n = sample_count(s);
+    s.t.resize(n);
+    s.v.resize(n);
+    const auto k = std::upper_bound(s.t.begin(), s.t.end(), m.t) - s.t.begin();
+    s.t.insert(s.t.begin() + k, m.t);
+    s.v.insert(s.v.begin() + k, m.v);
+  }
+  return d;
+}
+
+}  // namespace
+
+std::string render_svg_plot(const PlotData& data) {
+  return data.markers.empty() ? render_svg_plot_marked(data) : render_svg_plot_marked(with_marked_points(data));
 }
 
 }  // namespace netfold

@@ -6,6 +6,7 @@
 #include <nlohmann/json.hpp>
 
 #include "report/json_fields.hpp"
+#include "report/plot_marks.hpp"
 #include "netfold/report.hpp"
 #include "netfold/schedule.hpp"
 #include "netfold/units.hpp"
@@ -254,6 +255,22 @@ PlotData plot_data(const Solution& sol) {
                                               : obs.dimension() == Dimension::current ? "A"
                                                                                        : "W"),
                         times, values[i]});
+  }
+  // The peak of each trace, labelled with its value and time; the rating that limits it.
+  for (std::size_t i = 0; i < sol.observables().size(); ++i) {
+    const auto& obs = sol.observables()[i];
+    const std::string& unit = d.series[i].unit;
+    const Figures f = compute_figures(sol, obs);
+    const bool high = f.max >= -f.min;
+    const double v = high ? f.max : f.min, t = high ? f.t_max : f.t_min;
+    if (std::isfinite(v) && std::isfinite(t))
+      d.markers.push_back({i, t, v, fmt::format("peak {} at {}", format_si(v, unit, 4), format_si(t, "s", 4))});
+    if (auto limit = detail::peak_rating_of(sol.circuit(), obs.text)) {
+      const std::string element = obs.text.substr(0, obs.text.rfind('.'));
+      d.levels.push_back({unit, *limit, fmt::format("{} rated {}", element, format_si(*limit, unit, 4)), true});
+      // Its negative too where the trace swings far enough below zero to be judged by it.
+      if (-f.min > 0.3 * *limit) d.levels.push_back({unit, -*limit, "", true});
+    }
   }
   for (const auto& s : sol.segments()) {
     if (s.changes.empty() || s.from <= sol.window().from) continue;

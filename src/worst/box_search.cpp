@@ -414,6 +414,16 @@ SweepResult search_box(const Circuit& c, const std::vector<Sweep>& targets, cons
     }
   }
   result.grid = axes.front();
+  if (n_targets == 2) {
+    // The map of a two-target line: each point of the targets' grid, the worst over the rest.
+    const std::size_t plane = axes[0].size() * axes[1].size();
+    result.map_grid = axes[1];
+    for (std::size_t m = 0; m < n_obs; ++m) {
+      std::vector<double> map(plane, -kInfinity);
+      for (std::size_t idx = 0; idx < n; ++idx) map[idx % plane] = std::max(map[idx % plane], values[m][idx]);
+      result.map_peaks.push_back(std::move(map));
+    }
+  }
   for (const ShareLevel& sl : options.share_levels)
     for (std::size_t m = 0; m < n_obs; ++m)
       if (observables[m].text == sl.observable)

@@ -180,7 +180,10 @@ class SweepSearch {
 
   // The worst (largest) and best (smallest) of metric m: every grid point that is a local
   // extreme (ends included) is refined by golden-section search within its neighbours.
-  SweepExtreme extreme(const std::vector<double>& grid, const std::vector<double>& v, std::size_t m) const {
+  // Every refined extreme (its argument and value) is added to `refined`: with the grid they
+  // are the points of the refined curve, monotone between neighbours (refined_curve).
+  SweepExtreme extreme(const std::vector<double>& grid, const std::vector<double>& v, std::size_t m,
+                       std::vector<std::pair<double, double>>& refined) const {
     const std::size_t n = grid.size();
     const double tol = 1e-9 * (sw_.to - sw_.from);
     SweepExtreme ex;
@@ -198,6 +201,7 @@ class SweepSearch {
       const double a = grid[k == 0 ? 0 : k - 1], b = grid[k + 1 == n ? k : k + 1];
       if ((k == 0 || v[k] >= v[k - 1]) && (k + 1 == n || v[k] >= v[k + 1])) {
         auto [x, fx] = detail::golden_maximum([&](double xx) { return value(xx, m); }, a, b, tol);
+        refined.emplace_back(x, fx);
         if (fx > ex.worst) {
           ex.worst = fx;
           ex.worst_at = x;
@@ -205,6 +209,7 @@ class SweepSearch {
       }
       if ((k == 0 || v[k] <= v[k - 1]) && (k + 1 == n || v[k] <= v[k + 1])) {
         auto [x, fx] = detail::golden_maximum([&](double xx) { return -value(xx, m); }, a, b, tol);
+        refined.emplace_back(x, -fx);
         if (-fx < ex.best) {
           ex.best = -fx;
           ex.best_at = x;
@@ -223,25 +228,24 @@ class SweepSearch {
   std::shared_ptr<NetworkCache> cache_;
 };
 
-// The share of the range in which metric m exceeds `level`, from the crossings of the curve:
-// each grid interval whose ends lie on both sides of the level has its crossing refined by
-// bisection on the response itself (to 1e-9 of the interval), so the share is exact up to
-// excursions that begin and end between two grid points.
-double refined_share_above(const SweepSearch& search, const std::vector<double>& grid, const std::vector<double>& v,
-                           std::size_t m, double level) {
-  double above = 0.0;
-  for (std::size_t k = 0; k + 1 < grid.size(); ++k) {
-    const bool a = v[k] > level, b = v[k + 1] > level;
-    if (a && b) above += grid[k + 1] - grid[k];
-    if (a == b) continue;
-    double lo = grid[k], hi = grid[k + 1];  // lo on the side of v[k]
-    for (int it = 0; it < 30; ++it) {
-      const double mid = 0.5 * (lo + hi);
-      ((search.value(mid, m) > level) == a ? lo : hi) = mid;
-    }
-    above += a ? lo - grid[k] : grid[k + 1] - hi;
+// The refined curve of a metric: the grid's points and every refined extreme, in order of the
+// argument. Between neighbours the curve is monotone (each local extreme the grid brackets is
+// one of the points), so its crossings with a level are found one per piece.
+struct RefinedCurve {
+  std::vector<double> x, y;
+};
+
+RefinedCurve refined_curve(const std::vector<double>& grid, const std::vector<double>& v,
+                           std::vector<std::pair<double, double>> refined) {
+  for (std::size_t k = 0; k < grid.size(); ++k) refined.emplace_back(grid[k], v[k]);
+  std::stable_sort(refined.begin(), refined.end(), [](const auto& a, const auto& b) { return a.first < b.first; });
+  RefinedCurve curve;
+  for (const auto& [x, y] : refined) {
+    if (!curve.x.empty() && x == curve.x.back()) continue;
+    curve.x.push_back(x);
+    curve.y.push_back(y);
   }
-  return std::clamp(above / (grid.back() - grid.front()), 0.0, 1.0);
+  return curve;
 }
 
 SweepResult search_sweep(const Circuit& c, const Sweep& sw, const Solution& nominal,
@@ -262,8 +266,21 @@ SweepResult search_sweep(const Circuit& c, const Sweep& sw, const Solution& nomi
     Solution s = search.solve_at(result.grid[k]);
     for (std::size_t m = 0; m < search.metrics(); ++m) values[m][k] = search.metric(s, result.grid[k], m).value;
   }
+  // The distribution of the peak and the exceeded shares: from the crossings of the solved
+  // peak with each level along the refined curve (exact up to an excursion the grid does not
+  // bracket), not from counting or interpolating grid points.
+  std::vector<RefinedCurve> curves;
+  auto percentile = [&](std::size_t m, double q) {
+    return function_percentile([&](double x) { return search.value(x, m); }, curves[m].x, curves[m].y, q);
+  };
+  auto share_above = [&](std::size_t m, double level) {
+    if (curves[m].x.size() < 2) return curves[m].y.front() > level ? 1.0 : 0.0;
+    return function_share_above([&](double x) { return search.value(x, m); }, curves[m].x, curves[m].y, level);
+  };
   for (std::size_t m = 0; m < search.metrics(); ++m) {
-    SweepExtreme ex = search.extreme(result.grid, values[m], m);
+    std::vector<std::pair<double, double>> refined;
+    SweepExtreme ex = search.extreme(result.grid, values[m], m, refined);
+    curves.push_back(refined_curve(result.grid, values[m], std::move(refined)));
     ex.worst_point = {ex.worst_at};
     ex.best_point = {ex.best_at};
     Solution at_worst = search.solve_at(ex.worst_at);
@@ -273,9 +290,13 @@ SweepResult search_sweep(const Circuit& c, const Sweep& sw, const Solution& nomi
       ex.unit = dimension_symbol(obs.dimension());
       ex.t_peak = search.metric(at_worst, ex.worst_at, m).time;
       if (obs.kind != ObservableKind::element_power) ex.steady_peak = compute_figures(at_worst, obs).steady_peak;
-      ex.distribution.p50 = curve_percentile(result.grid, values[m], 0.50);
-      ex.distribution.p90 = curve_percentile(result.grid, values[m], 0.90);
-      ex.distribution.p99 = curve_percentile(result.grid, values[m], 0.99);
+      if (curves[m].x.size() < 2) {
+        ex.distribution.p50 = ex.distribution.p90 = ex.distribution.p99 = ex.worst;
+      } else {
+        ex.distribution.p50 = percentile(m, 0.50);
+        ex.distribution.p90 = percentile(m, 0.90);
+        ex.distribution.p99 = percentile(m, 0.99);
+      }
       result.observables.push_back(ex);
       result.grid_peaks.push_back(values[m]);
     } else {
@@ -285,14 +306,13 @@ SweepResult search_sweep(const Circuit& c, const Sweep& sw, const Solution& nomi
       ex.where = stress_location(at_worst, r.kind, rating_stress(at_worst, r.element, r.kind));
       result.ratings.push_back(ex);
       result.rating_index.push_back(m - n_obs);
-      result.exceeded_share.push_back(n_grid < 2 ? (ex.worst > r.rated ? 1.0 : 0.0)
-                                                 : refined_share_above(search, result.grid, values[m], m, r.rated));
+      result.exceeded_share.push_back(share_above(m, r.rated));
     }
   }
   for (const ShareLevel& sl : options.share_levels)
     for (std::size_t m = 0; m < n_obs; ++m)
       if (observables[m].text == sl.observable)
-        result.shares.push_back({sl.observable, sl.level, refined_share_above(search, result.grid, values[m], m, sl.level)});
+        result.shares.push_back({sl.observable, sl.level, share_above(m, sl.level)});
   if (options.samples > 0) {
     UniformSampler sampler(options.seed);
     std::vector<std::vector<double>> samples(search.metrics(), std::vector<double>(options.samples));
