@@ -272,9 +272,36 @@ void EventMarch::take_event(double t, const std::vector<int>& fired, const std::
                             Eigen::VectorXd& z, SwitchPositions& p, const std::vector<double>& levels) {
   const SwitchPositions before = p;
   std::vector<ElementId> acted;
+  // Of the diodes CVODE reports at one root, only the one that crossed first (the largest time
+  // since its crossing, −g/ġ, in the configuration the root was found in) is flipped here; the
+  // search then flips the others only if they violate their state in the new configuration
+  // (two diodes in series end their conduction picoseconds apart: the second may carry on).
+  std::size_t first = fired.size();
+  double since = -kInfinity;
+  if (std::count_if(fired.begin(), fired.end(), [](int f) { return f != 0; }) > 1) {
+    const Configuration& cfg = configuration(p, "the configuration of an event");
+    StateEquation eq(cfg, signals_, Forcing{levels, true, {}, unit_});
+    std::vector<WatchOf> same;  // the same watches as `of`: same configuration, same instant
+    eq.set_watches(watches(cfg, p, t, same));
+    const Eigen::VectorXd u = eq.inputs(t, z.data());
+    const Eigen::VectorXd xs = cfg.unknowns(u);
+    const Eigen::VectorXd du = eq.input_slopes(t, z.data());
+    const Eigen::VectorXd dxs = cfg.unknowns(du);
+    for (std::size_t i = 0; i < fired.size() && i < eq.watches().size(); ++i) {
+      if (fired[i] == 0 || !of[i].diode) continue;
+      const Watch& w = eq.watches()[i];
+      const double g = w.sign * evaluate(w.form, xs, u) - w.level, slope = w.sign * evaluate(w.form, dxs, du);
+      const double s = slope < 0.0 ? g / slope : -g;
+      if (s > since) {
+        since = s;
+        first = i;
+      }
+    }
+  }
   for (std::size_t i = 0; i < fired.size(); ++i) {
     if (fired[i] == 0) continue;
     if (of[i].diode) {
+      if (first < fired.size() && i != first) continue;
       p.diodes[of[i].index] = of[i].to;
       acted.push_back(diodes_[of[i].index]);
     } else {
