@@ -369,6 +369,12 @@ void run_with_events(Run& r, const SamplePlan& plan, Configurations& configs, co
   const double unit = 1.0 / r.scale;
   event_tolerances(r, configs, options, unit);
   EventMarch march(applied, configs, r.signals, unit, cv, out.rtol, r.atol, r.hmax);
+  auto scales = [&] {
+    std::vector<double> s;
+    for (double x : out.state_scale) s.push_back(x / r.scale);
+    return s;
+  };
+  march.set_state_scale(scales());
   const bool diodes = !diode_elements(r.circuit).empty();
   SwitchPositions p = positions_before_zero(r.circuit);
   InitialState initial;
@@ -400,6 +406,7 @@ void run_with_events(Run& r, const SamplePlan& plan, Configurations& configs, co
   }
   event_tolerances(r, configs, options, unit);
   march.set_atol(r.atol);
+  march.set_state_scale(scales());
   Eigen::VectorXd z = initial.values;
   std::size_t next = 0;
   try {

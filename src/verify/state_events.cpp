@@ -142,8 +142,11 @@ std::pair<SwitchPositions, Eigen::VectorXd> EventMarch::settle(SwitchPositions p
     z = *xs0;
     for (std::size_t k = 0; k < cfg->modes.size(); ++k)
       if (cfg->modes[k] == PortMode::held_at_zero) {
-        // Held at zero only where it carries (next to) nothing: else this is not its configuration.
-        const double size = std::max(z.cwiseAbs().maxCoeff(), 1e-300);
+        // Held at zero only where it carries (next to) nothing — nothing beside the states' own
+        // scale, as at the root of a diode's current in series with it: else this is not its
+        // configuration.
+        const double own = k < scale_.size() ? scale_[k] : 0.0;
+        const double size = std::max({z.cwiseAbs().maxCoeff(), own, 1e-300});
         if (std::fabs(z[static_cast<Eigen::Index>(k)]) > 1e-9 * size) return std::nullopt;
         z[static_cast<Eigen::Index>(k)] = 0.0;
       }

@@ -72,6 +72,8 @@ class EventMarch {
 
   void set_atol(Eigen::VectorXd atol) { atol_ = std::move(atol); }
   void set_rtol(double rtol) { rtol_ = rtol; }
+  // Each state's scale (run's units): a state held at zero may carry this share 1e-9 of it.
+  void set_state_scale(std::vector<double> scale) { scale_ = std::move(scale); }
   double unit() const { return unit_; }
   // Events found (diode changes at a root, contacts at their zero), in time order; `record`
   // false while shooting before t = 0.
@@ -92,6 +94,7 @@ class EventMarch {
   Eigen::VectorXd atol_;
   double hmax_;
   std::vector<ElementId> diodes_;
+  std::vector<double> scale_;
   std::vector<ArmedContact> contacts_;
   std::vector<int> carried_;  // per switch slot: −1, or the position a contact left it in
   // Stalled events (not advancing time) in a row, and where.
