@@ -356,7 +356,10 @@ std::shared_ptr<VerifyResult> verify_solved(SolvedPtr solved, double rtol) {
 void bind_verify(py::module_& m) {
   py::class_<VerifyResult, std::shared_ptr<VerifyResult>>(
       m, "Verification", "The closed form against CVODE on the full nodal equations (`netfold verify`).")
-      .def_property_readonly("data", [](const VerifyResult& v) { return from_json(netfold::verify_json(v.report, v.solved->solution().circuit())); },
+      .def_property_readonly("data",
+                             [](const VerifyResult& v) {
+                               return from_json(netfold::verify_json(v.report, v.solved->solution().circuit()));
+                             },
                              "The JSON document of `netfold verify --json`, as a dict.")
       .def_property_readonly("passed", [](const VerifyResult& v) { return v.report.passed; })
       .def_property_readonly("max_rel_error", [](const VerifyResult& v) { return v.report.max_rel_error; })

@@ -148,8 +148,7 @@ TEST_CASE("a half-wave rectifier's waveforms and diode events agree with the clo
   CHECK(r.max_event_time_error <= 1e-9);
 }
 
-TEST_CASE("a bridge of four diodes with leakage agrees with the closed form, event instants too",
-          "[verify][diodes]") {
+TEST_CASE("a bridge of four diodes with leakage agrees with the closed form, event instants too", "[verify][diodes]") {
   VerifyReport r = check(parse_netlist(kBridge, "bridge.nf"));
   CHECK(r.passed);
   CHECK(r.max_rel_error < 1e-7);
@@ -158,9 +157,10 @@ TEST_CASE("a bridge of four diodes with leakage agrees with the closed form, eve
   // The pairs alternate: d1 and d4 conduct together, d2 and d3 together.
   for (const ScheduledEvent& e : r.numerical.events) {
     if (e.kind != EventKind::diode_conducts) continue;
-    const auto partner = std::find_if(r.numerical.events.begin(), r.numerical.events.end(), [&](const ScheduledEvent& o) {
-      return o.kind == EventKind::diode_conducts && std::fabs(o.time - e.time) <= 1e-9 && o.element != e.element;
-    });
+    const auto partner =
+        std::find_if(r.numerical.events.begin(), r.numerical.events.end(), [&](const ScheduledEvent& o) {
+          return o.kind == EventKind::diode_conducts && std::fabs(o.time - e.time) <= 1e-9 && o.element != e.element;
+        });
     CHECK(partner != r.numerical.events.end());
   }
 }
@@ -191,8 +191,7 @@ TEST_CASE("a relay coil released into a diode and zener agrees with the closed f
   CHECK(r.max_event_time_error <= 1e-9);
 }
 
-TEST_CASE("a contact that opens at current zero on an inductive load agrees with the closed form",
-          "[verify][diodes]") {
+TEST_CASE("a contact that opens at current zero on an inductive load agrees with the closed form", "[verify][diodes]") {
   VerifyReport r = check(parse_netlist(kCurrentZero, "current_zero.nf"));
   CHECK(r.passed);
   REQUIRE(count_kind(r.numerical, EventKind::switch_opens) == 1);

@@ -33,7 +33,8 @@ constexpr double kPeriodTolerance = 1e-11;
 
 const char* unit_of(const Element& e) { return e.kind == ElementKind::capacitor ? "V" : "A"; }
 
-std::string states_text(const Circuit& c, const std::vector<ElementId>& states, const Eigen::VectorXd& x, double scale) {
+std::string states_text(const Circuit& c, const std::vector<ElementId>& states, const Eigen::VectorXd& x,
+                        double scale) {
   std::string out;
   for (std::size_t k = 0; k < states.size(); ++k)
     out += fmt::format("{}{} = {}", k == 0 ? "" : ", ", c.element(states[k]).name,
@@ -55,9 +56,8 @@ std::string diodes_text(const Circuit& c, const SwitchPositions& p) {
 
 // The steps of the search (about 100 lines: each way of finding the states ends with its own
 // note, in the order of the format's rules).
-InitialState diode_initial_state(const AppliedScenario& applied,
-                                 const std::vector<SourceSignal>& signals, double scale, EventMarch& march,
-                                 SwitchPositions& at_zero) {
+InitialState diode_initial_state(const AppliedScenario& applied, const std::vector<SourceSignal>& signals, double scale,
+                                 EventMarch& march, SwitchPositions& at_zero) {
   InitialState out;
   const Circuit& c = applied.circuit();
   const std::vector<ElementId> states = c.storage_elements();
@@ -110,9 +110,10 @@ InitialState diode_initial_state(const AppliedScenario& applied,
   const std::vector<std::vector<double>> groups = harmonic_groups(source_frequencies(signals));
   if (groups.size() > 1) {
     out.status = IntegrationStatus::failed;
-    out.message = fmt::format("the sources' frequencies {} and {} are not whole multiples of one fundamental, so "
-                              "the circuit with diodes has no periodic steady state before t = 0",
-                              format_si(groups[0].front(), "Hz"), format_si(groups[1].front(), "Hz"));
+    out.message = fmt::format(
+        "the sources' frequencies {} and {} are not whole multiples of one fundamental, so "
+        "the circuit with diodes has no periodic steady state before t = 0",
+        format_si(groups[0].front(), "Hz"), format_si(groups[1].front(), "Hz"));
     return out;
   }
   const double period = groups.empty() ? 0.0 : 1.0 / groups.front().front();
@@ -122,9 +123,10 @@ InitialState diode_initial_state(const AppliedScenario& applied,
     at_zero = march.settle(p, 0.0, levels, true, fixed(x), where).first;
     out.values = x;
     out.method = InitialStateMethod::dc_operating_point;
-    out.note = fmt::format("the states at t = 0- from the DC steady state of the consistent configuration before "
-                           "t = 0 ({}): {}",
-                           diodes_text(c, at_zero), states_text(c, states, x, scale));
+    out.note = fmt::format(
+        "the states at t = 0- from the DC steady state of the consistent configuration before "
+        "t = 0 ({}): {}",
+        diodes_text(c, at_zero), states_text(c, states, x, scale));
     return out;
   }
 
@@ -181,9 +183,10 @@ InitialState diode_initial_state(const AppliedScenario& applied,
   }
   if (!converged) {
     out.status = IntegrationStatus::failed;
-    out.message = fmt::format("the periodic steady state with diodes was not found in {} Newton iterations "
-                              "(|x(0) - x(-T)| = {:.3g} of the states' size)",
-                              iterations, f.cwiseAbs().maxCoeff() / size_of(x));
+    out.message = fmt::format(
+        "the periodic steady state with diodes was not found in {} Newton iterations "
+        "(|x(0) - x(-T)| = {:.3g} of the states' size)",
+        iterations, f.cwiseAbs().maxCoeff() / size_of(x));
     return out;
   }
   keep_given(x);
@@ -191,11 +194,12 @@ InitialState diode_initial_state(const AppliedScenario& applied,
   at_zero = last;
   out.values = x;
   out.method = InitialStateMethod::shooting;
-  out.note = fmt::format("the states at t = 0- from the periodic steady state with diodes, by shooting over one "
-                         "period ({}) with CVODE's root finding for the diode events and Newton with a difference "
-                         "Jacobian ({} iteration{}): {}; the diodes at t = 0-: {}",
-                         format_si(period, "s"), iterations, iterations == 1 ? "" : "s",
-                         states_text(c, states, x, scale), diodes_text(c, at_zero));
+  out.note = fmt::format(
+      "the states at t = 0- from the periodic steady state with diodes, by shooting over one "
+      "period ({}) with CVODE's root finding for the diode events and Newton with a difference "
+      "Jacobian ({} iteration{}): {}; the diodes at t = 0-: {}",
+      format_si(period, "s"), iterations, iterations == 1 ? "" : "s", states_text(c, states, x, scale),
+      diodes_text(c, at_zero));
   return out;
 }
 

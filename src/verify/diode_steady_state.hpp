@@ -10,8 +10,7 @@ namespace netfold::integration {
 // The states at t = 0− (units of S) and, into `at_zero`, the consistent configuration there:
 // given states kept, else the DC steady state (DC sources) or the periodic steady state by
 // shooting with `march` (sinusoids). A status other than ok says why none was found.
-InitialState diode_initial_state(const AppliedScenario& applied,
-                                 const std::vector<SourceSignal>& signals, double scale, EventMarch& march,
-                                 SwitchPositions& at_zero);
+InitialState diode_initial_state(const AppliedScenario& applied, const std::vector<SourceSignal>& signals, double scale,
+                                 EventMarch& march, SwitchPositions& at_zero);
 
 }  // namespace netfold::integration

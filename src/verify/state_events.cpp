@@ -30,6 +30,8 @@ namespace {
 // A margin within this share of the size of its terms is at its threshold.
 constexpr double kEdge = 1e-9;
 constexpr std::size_t kMaxEnumerated = 12;
+// ... and at most this many configurations of them (2^14).
+constexpr std::size_t kMaxConfigurations = std::size_t{1} << 14;
 constexpr int kMaxStalled = 64;
 
 struct Condition {
@@ -99,8 +101,16 @@ bool has_state_events(const AppliedScenario& applied) {
 EventMarch::EventMarch(const AppliedScenario& applied, Configurations& configs,
                        const std::vector<SourceSignal>& signals, double unit, Integrator& cv, double rtol,
                        Eigen::VectorXd atol, double hmax)
-    : applied_(applied), circuit_(applied.circuit()), configs_(configs), signals_(signals), unit_(unit), cv_(cv),
-      rtol_(rtol), atol_(std::move(atol)), hmax_(hmax), diodes_(diode_elements(applied.circuit())) {
+    : applied_(applied),
+      circuit_(applied.circuit()),
+      configs_(configs),
+      signals_(signals),
+      unit_(unit),
+      cv_(cv),
+      rtol_(rtol),
+      atol_(std::move(atol)),
+      hmax_(hmax),
+      diodes_(diode_elements(applied.circuit())) {
   std::size_t slot = 0;
   for (ElementId i = 0; i < circuit_.elements().size(); ++i) {
     if (circuit_.element(i).kind != ElementKind::switch_) continue;
@@ -126,67 +136,86 @@ void EventMarch::carry_contacts(const ScheduledSegment& seg, SwitchPositions& p)
     if (carried_[slot] >= 0) p.closed[slot] = carried_[slot] == 1;
 }
 
+std::optional<EventMarch::Violations> EventMarch::judge(const SwitchPositions& q, const Judging& how,
+                                                        Eigen::VectorXd& z) {
+  std::string why;
+  const auto modes = configs_.modes_for(q, why);
+  const Configuration* cfg = modes ? configs_.find(q, *modes, why) : nullptr;
+  if (!cfg) return std::nullopt;
+  const auto xs0 = how.states_of(*cfg);
+  if (!xs0) return std::nullopt;
+  z = *xs0;
+  for (std::size_t k = 0; k < cfg->modes.size(); ++k)
+    if (cfg->modes[k] == PortMode::held_at_zero) {
+      // Held at zero only where it carries (next to) nothing — nothing beside the states' own
+      // scale, as at the root of a diode's current in series with it: else this is not its
+      // configuration.
+      const double own = k < scale_.size() ? scale_[k] : 0.0;
+      const double size = std::max({z.cwiseAbs().maxCoeff(), own, 1e-300});
+      if (std::fabs(z[static_cast<Eigen::Index>(k)]) > 1e-9 * size) return std::nullopt;
+      z[static_cast<Eigen::Index>(k)] = 0.0;
+    }
+  StateEquation eq(*cfg, signals_, Forcing{*how.levels, !how.dc, {}, unit_});
+  const Eigen::VectorXd u = eq.inputs(how.t, z.data());
+  const Eigen::VectorXd xs = cfg->unknowns(u);
+  Eigen::VectorXd du, dxs;
+  if (!how.dc) {
+    du = eq.input_slopes(how.t, z.data());
+    dxs = cfg->unknowns(du);
+  }
+  Violations bad;
+  for (std::size_t slot = 0; slot < diodes_.size(); ++slot) {
+    const Element& d = circuit_.element(diodes_[slot]);
+    for (const Condition& cond : conditions(d, q.diodes[slot])) {
+      const LinearForm form =
+          cond.current ? cfg->system.element_current(diodes_[slot]) : cfg->system.element_voltage(diodes_[slot]);
+      if (!form.defined) {  // a part left floating by blocking diodes: try it conducting
+        bad.emplace_back(slot, DiodeState::forward);
+        break;
+      }
+      const double level = cond.level * unit_;
+      const double margin = cond.sign * evaluate(form, xs, u) - level;
+      const double tol = kEdge * (size_of(form, xs, u) + std::fabs(level));
+      bool holds = margin > tol;
+      if (!holds && margin >= -tol)
+        holds = how.dc || cond.sign * evaluate(form, dxs, du) >= -kEdge * size_of(form, dxs, du);
+      if (!holds) {
+        bad.emplace_back(slot, cond.to);
+        break;
+      }
+    }
+  }
+  return bad;
+}
+
+std::vector<std::vector<DiodeState>> EventMarch::every_configuration() const {
+  std::vector<std::vector<DiodeState>> all{{}};
+  if (diodes_.size() > kMaxEnumerated) return {};
+  for (ElementId id : diodes_) {
+    std::vector<std::vector<DiodeState>> next;
+    for (const auto& a : all)
+      for (DiodeState s : {DiodeState::blocking, DiodeState::forward, DiodeState::reverse}) {
+        if (s == DiodeState::reverse && !circuit_.element(id).breakdown) continue;
+        next.push_back(a);
+        next.back().push_back(s);
+      }
+    if (next.size() > kMaxConfigurations) return {};
+    all = std::move(next);
+  }
+  auto blocking = [](const std::vector<DiodeState>& v) { return std::count(v.begin(), v.end(), DiodeState::blocking); };
+  std::stable_sort(all.begin(), all.end(), [&](const auto& a, const auto& b) { return blocking(a) > blocking(b); });
+  return all;
+}
+
 std::pair<SwitchPositions, Eigen::VectorXd> EventMarch::settle(SwitchPositions p, double t,
                                                                const std::vector<double>& levels, bool dc,
                                                                const StatesOf& states_of, const std::string& where) {
+  const Judging how{t, &levels, dc, states_of};
   std::set<ElementId> violators;
-  // How the configuration p fares: empty optional when it cannot be judged (structural problem,
-  // no states); else the diodes (slots) that violate their state, with where each goes.
-  auto judge = [&](const SwitchPositions& q, Eigen::VectorXd& z) -> std::optional<std::vector<std::pair<std::size_t, DiodeState>>> {
-    std::string why;
-    const auto modes = configs_.modes_for(q, why);
-    const Configuration* cfg = modes ? configs_.find(q, *modes, why) : nullptr;
-    if (!cfg) return std::nullopt;
-    const auto xs0 = states_of(*cfg);
-    if (!xs0) return std::nullopt;
-    z = *xs0;
-    for (std::size_t k = 0; k < cfg->modes.size(); ++k)
-      if (cfg->modes[k] == PortMode::held_at_zero) {
-        // Held at zero only where it carries (next to) nothing — nothing beside the states' own
-        // scale, as at the root of a diode's current in series with it: else this is not its
-        // configuration.
-        const double own = k < scale_.size() ? scale_[k] : 0.0;
-        const double size = std::max({z.cwiseAbs().maxCoeff(), own, 1e-300});
-        if (std::fabs(z[static_cast<Eigen::Index>(k)]) > 1e-9 * size) return std::nullopt;
-        z[static_cast<Eigen::Index>(k)] = 0.0;
-      }
-    StateEquation eq(*cfg, signals_, Forcing{levels, !dc, {}, unit_});
-    const Eigen::VectorXd u = eq.inputs(t, z.data());
-    const Eigen::VectorXd xs = cfg->unknowns(u);
-    Eigen::VectorXd du, dxs;
-    if (!dc) {
-      du = eq.input_slopes(t, z.data());
-      dxs = cfg->unknowns(du);
-    }
-    std::vector<std::pair<std::size_t, DiodeState>> bad;
-    for (std::size_t slot = 0; slot < diodes_.size(); ++slot) {
-      const Element& d = circuit_.element(diodes_[slot]);
-      for (const Condition& cond : conditions(d, q.diodes[slot])) {
-        const LinearForm form =
-            cond.current ? cfg->system.element_current(diodes_[slot]) : cfg->system.element_voltage(diodes_[slot]);
-        if (!form.defined) {  // a part left floating by blocking diodes: try it conducting
-          bad.emplace_back(slot, DiodeState::forward);
-          break;
-        }
-        const double level = cond.level * unit_;
-        const double margin = cond.sign * evaluate(form, xs, u) - level;
-        const double tol = kEdge * (size_of(form, xs, u) + std::fabs(level));
-        bool holds = margin > tol;
-        if (!holds && margin >= -tol)
-          holds = dc || cond.sign * evaluate(form, dxs, du) >= -kEdge * size_of(form, dxs, du);
-        if (!holds) {
-          bad.emplace_back(slot, cond.to);
-          break;
-        }
-      }
-    }
-    return bad;
-  };
-
   std::set<std::vector<DiodeState>> seen;
   for (std::size_t step = 0; step < 2 * diodes_.size() + 4; ++step) {
     Eigen::VectorXd z;
-    const auto bad = judge(p, z);
+    const auto bad = judge(p, how, z);
     if (bad && bad->empty()) return {p, z};
     if (!bad || !seen.insert(p.diodes).second) break;
     for (const auto& [slot, to] : *bad) {
@@ -194,30 +223,19 @@ std::pair<SwitchPositions, Eigen::VectorXd> EventMarch::settle(SwitchPositions p
       p.diodes[slot] = to;
     }
   }
-  // Every configuration, fewest conducting diodes first.
-  if (diodes_.size() <= kMaxEnumerated) {
-    std::vector<std::vector<DiodeState>> all{{}};
-    for (ElementId id : diodes_) {
-      std::vector<std::vector<DiodeState>> next;
-      for (const auto& a : all)
-        for (DiodeState s : {DiodeState::blocking, DiodeState::forward, DiodeState::reverse}) {
-          if (s == DiodeState::reverse && !circuit_.element(id).breakdown) continue;
-          next.push_back(a);
-          next.back().push_back(s);
-        }
-      all = std::move(next);
-    }
-    auto on = [](const std::vector<DiodeState>& v) { return std::count(v.begin(), v.end(), DiodeState::blocking); };
-    std::stable_sort(all.begin(), all.end(), [&](const auto& a, const auto& b) { return on(a) > on(b); });
-    for (auto& states : all) {
-      p.diodes = states;
-      Eigen::VectorXd z;
-      const auto bad = judge(p, z);
-      if (bad && bad->empty()) return {p, z};
-    }
+  for (auto& states : every_configuration()) {
+    p.diodes = std::move(states);
+    Eigen::VectorXd z;
+    const auto bad = judge(p, how, z);
+    if (bad && bad->empty()) return {p, z};
   }
-  const std::vector<ElementId> named = violators.empty() ? diodes_ : std::vector<ElementId>(violators.begin(), violators.end());
-  throw MarchError(fmt::format("no consistent state of the diodes {} was found {}", names(circuit_, named), where));
+  const std::vector<ElementId> named =
+      violators.empty() ? diodes_ : std::vector<ElementId>(violators.begin(), violators.end());
+  throw MarchError(fmt::format("no consistent state of the diodes {} was found {}{}", names(circuit_, named), where,
+                               diodes_.size() > kMaxEnumerated
+                                   ? fmt::format(" (more than {} diodes are not searched one configuration at a time)",
+                                                 kMaxEnumerated)
+                                   : ""));
 }
 
 std::vector<Watch> EventMarch::watches(const Configuration& cfg, const SwitchPositions& p, double t,
@@ -271,8 +289,8 @@ void EventMarch::count_stall(double t, const std::vector<ElementId>& elements) {
                                names(circuit_, ids), kMaxStalled, format_si(t, "s")));
 }
 
-void EventMarch::take_event(double t, const std::vector<int>& fired, const std::vector<WatchOf>& of,
-                            Eigen::VectorXd& z, SwitchPositions& p, const std::vector<double>& levels) {
+void EventMarch::take_event(double t, const std::vector<int>& fired, const std::vector<WatchOf>& of, Eigen::VectorXd& z,
+                            SwitchPositions& p, const std::vector<double>& levels) {
   const SwitchPositions before = p;
   std::vector<ElementId> acted;
   // Of the diodes CVODE reports at one root, only the one that crossed first (the largest time
@@ -318,8 +336,9 @@ void EventMarch::take_event(double t, const std::vector<int>& fired, const std::
   }
   count_stall(t, acted);
   const Eigen::VectorXd fixed = z;
-  std::tie(p, z) = settle(p, t, levels, false, [&](const Configuration&) { return std::optional(fixed); },
-                          fmt::format("at t = {}", format_si(t, "s")));
+  std::tie(p, z) = settle(
+      p, t, levels, false, [&](const Configuration&) { return std::optional(fixed); },
+      fmt::format("at t = {}", format_si(t, "s")));
   if (!record) return;
   for (std::size_t slot = 0; slot < diodes_.size(); ++slot)
     if (p.diodes[slot] != before.diodes[slot]) events.push_back({t, diodes_[slot], kind_of(p.diodes[slot]), 0.0});

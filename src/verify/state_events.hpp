@@ -102,6 +102,19 @@ class EventMarch {
   double last_event_ = -kInfinity;
   std::vector<ElementId> stalled_elements_;
 
+  // The diodes (slots) that violate their state in a configuration, with where each goes.
+  using Violations = std::vector<std::pair<std::size_t, DiodeState>>;
+  struct Judging {
+    double t = 0.0;
+    const std::vector<double>* levels = nullptr;
+    bool dc = false;
+    const StatesOf& states_of;
+  };
+  // How configuration q fares at how.t (its states into z): nullopt when it cannot be judged (a
+  // structural problem, no states, an inductor held at zero that carries current).
+  std::optional<Violations> judge(const SwitchPositions& q, const Judging& how, Eigen::VectorXd& z);
+  // Every configuration of the diodes, fewest conducting first (empty past the search's limits).
+  std::vector<std::vector<DiodeState>> every_configuration() const;
   struct WatchOf {
     bool diode = true;
     std::size_t index = 0;  // diode slot or contact index
