@@ -10,7 +10,10 @@
 #include <cmath>
 
 #include "netfold/parse.hpp"
+#include <nlohmann/json.hpp>
+
 #include "netfold/integrate.hpp"
+#include "netfold/report.hpp"
 #include "netfold/verify.hpp"
 #include "response/test_seams.hpp"
 
@@ -287,4 +290,18 @@ resolution 1 ms
   // One conduction interval per period: it stops and starts again within the first period.
   CHECK(count_kind(run, EventKind::diode_blocks) >= 1);
   CHECK(count_kind(run, EventKind::diode_conducts) >= 1);
+}
+
+TEST_CASE("the verify JSON lists the integrator's events with their elements and kinds", "[verify][diodes][report]") {
+  const Circuit c = parse_netlist(kCurrentZero, "current_zero.nf");
+  const Solution s = solve(c);
+  const VerifyReport r = verify_closed_form(s);
+  const nlohmann::json j = nlohmann::json::parse(verify_json(r, c));
+  REQUIRE(j["events"].size() == 1);
+  CHECK(j["events"][0]["element"] == "K1");
+  CHECK(j["events"][0]["kind"] == "switch_opens");
+  CHECK(j["events"][0]["time"].get<double>() == r.numerical.events.front().time);
+  CHECK(j["closed_events"] == 1);
+  CHECK(j["max_event_time_error"].get<double>() <= j["event_time_tolerance"].get<double>());
+  CHECK(j["event_time_tolerance"].get<double>() == Approx(1e-6 * 0.060));
 }

@@ -16,6 +16,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <functional>
 
 #include <Eigen/QR>
 #include <fmt/format.h>
@@ -52,9 +53,49 @@ std::string diodes_text(const Circuit& c, const SwitchPositions& p) {
   return out.empty() ? "none conducting" : out + " conducting";
 }
 
+// Newton on F(x) = Φ(x) − x from x (file comment): true when converged; `defect` is the last
+// |F| relative to the states' size.
+bool periodic_newton(const std::function<Eigen::VectorXd(const Eigen::VectorXd&)>& phi, const bool& stopped,
+                     Eigen::VectorXd& x, int& iterations, double& defect) {
+  const Eigen::Index n = x.size();
+  auto size_of = [](const Eigen::VectorXd& v) { return std::max(v.cwiseAbs().maxCoeff(), 1e-3); };
+  Eigen::VectorXd f = phi(x) - x;
+  bool converged = false;
+  for (iterations = 0; iterations < kMaxNewton && !stopped; ++iterations) {
+    if (f.cwiseAbs().maxCoeff() <= kPeriodTolerance * size_of(x)) {
+      converged = true;
+      break;
+    }
+    Eigen::MatrixXd jac(n, n);
+    for (Eigen::Index j = 0; j < n; ++j) {
+      Eigen::VectorXd xp = x;
+      const double h = 1e-6 * std::max(std::fabs(x[j]), size_of(x));
+      xp[j] += h;
+      jac.col(j) = (phi(xp) - xp - f) / h;
+    }
+    const Eigen::VectorXd dx = Eigen::CompleteOrthogonalDecomposition<Eigen::MatrixXd>(jac).solve(-f);
+    double step = 1.0;
+    Eigen::VectorXd xn = x + dx, fn = phi(xn) - xn;
+    for (int k = 0; k < kMaxHalvings && !(fn.cwiseAbs().maxCoeff() < f.cwiseAbs().maxCoeff()) && !stopped; ++k) {
+      step /= 2.0;
+      xn = x + step * dx;
+      fn = phi(xn) - xn;
+    }
+    if (!(fn.cwiseAbs().maxCoeff() < f.cwiseAbs().maxCoeff())) {
+      // No Newton step helps: the run's own error is the floor when |F| is already small.
+      converged = f.cwiseAbs().maxCoeff() <= 1e3 * kPeriodTolerance * size_of(x);
+      break;
+    }
+    x = xn;
+    f = fn;
+  }
+  defect = f.cwiseAbs().maxCoeff() / size_of(x);
+  return converged && !stopped;
+}
+
 }  // namespace
 
-// The steps of the search (about 100 lines: each way of finding the states ends with its own
+// The steps of the search (about 110 lines: each way of finding the states ends with its own
 // note, in the order of the format's rules).
 InitialState diode_initial_state(const AppliedScenario& applied, const std::vector<SourceSignal>& signals, double scale,
                                  EventMarch& march, SwitchPositions& at_zero) {
@@ -142,38 +183,9 @@ InitialState diode_initial_state(const AppliedScenario& applied, const std::vect
     last = q;
     return z;
   };
-  auto size_of = [&](const Eigen::VectorXd& v) { return std::max(v.cwiseAbs().maxCoeff(), 1e-3); };
-  Eigen::VectorXd f = phi(x) - x;
-  bool converged = false;
   int iterations = 0;
-  for (; iterations < kMaxNewton && !stopped; ++iterations) {
-    if (f.cwiseAbs().maxCoeff() <= kPeriodTolerance * size_of(x)) {
-      converged = true;
-      break;
-    }
-    Eigen::MatrixXd jac(n, n);
-    for (Eigen::Index j = 0; j < n; ++j) {
-      Eigen::VectorXd xp = x;
-      const double h = 1e-6 * std::max(std::fabs(x[j]), size_of(x));
-      xp[j] += h;
-      jac.col(j) = (phi(xp) - xp - f) / h;
-    }
-    const Eigen::VectorXd dx = Eigen::CompleteOrthogonalDecomposition<Eigen::MatrixXd>(jac).solve(-f);
-    double step = 1.0;
-    Eigen::VectorXd xn = x + dx, fn = phi(xn) - xn;
-    for (int k = 0; k < kMaxHalvings && !(fn.cwiseAbs().maxCoeff() < f.cwiseAbs().maxCoeff()) && !stopped; ++k) {
-      step /= 2.0;
-      xn = x + step * dx;
-      fn = phi(xn) - xn;
-    }
-    if (!(fn.cwiseAbs().maxCoeff() < f.cwiseAbs().maxCoeff())) {
-      // No Newton step helps: the run's own error is the floor when |F| is already small.
-      converged = f.cwiseAbs().maxCoeff() <= 1e3 * kPeriodTolerance * size_of(x);
-      break;
-    }
-    x = xn;
-    f = fn;
-  }
+  double defect = 0.0;
+  const bool converged = periodic_newton(phi, stopped, x, iterations, defect);
   march.record = true;
   out.shooting_iterations = iterations;
   if (stopped) {
@@ -186,7 +198,7 @@ InitialState diode_initial_state(const AppliedScenario& applied, const std::vect
     out.message = fmt::format(
         "the periodic steady state with diodes was not found in {} Newton iterations "
         "(|x(0) - x(-T)| = {:.3g} of the states' size)",
-        iterations, f.cwiseAbs().maxCoeff() / size_of(x));
+        iterations, defect);
     return out;
   }
   keep_given(x);
