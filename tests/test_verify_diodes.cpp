@@ -9,10 +9,10 @@
 #include <algorithm>
 #include <cmath>
 
-#include "netfold/parse.hpp"
 #include <nlohmann/json.hpp>
 
 #include "netfold/integrate.hpp"
+#include "netfold/parse.hpp"
 #include "netfold/report.hpp"
 #include "netfold/verify.hpp"
 #include "response/test_seams.hpp"
