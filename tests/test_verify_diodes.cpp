@@ -290,6 +290,8 @@ resolution 1 ms
   // One conduction interval per period: it stops and starts again within the first period.
   CHECK(count_kind(run, EventKind::diode_blocks) >= 1);
   CHECK(count_kind(run, EventKind::diode_conducts) >= 1);
+  // The shooting's own events before t = 0 are not the run's.
+  for (const ScheduledEvent& e : run.events) CHECK(e.time >= 0.0);
 }
 
 TEST_CASE("the verify JSON lists the integrator's events with their elements and kinds", "[verify][diodes][report]") {

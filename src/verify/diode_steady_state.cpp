@@ -186,7 +186,6 @@ InitialState diode_initial_state(const AppliedScenario& applied, const std::vect
   int iterations = 0;
   double defect = 0.0;
   const bool converged = periodic_newton(phi, stopped, x, iterations, defect);
-  march.record = true;
   out.shooting_iterations = iterations;
   if (stopped) {
     out.status = IntegrationStatus::failed;  // the caller reads the integrator's own status
@@ -202,7 +201,8 @@ InitialState diode_initial_state(const AppliedScenario& applied, const std::vect
     return out;
   }
   keep_given(x);
-  phi(x);
+  phi(x);  // the configuration at t = 0−; its events before t = 0 are not the run's
+  march.record = true;
   at_zero = last;
   out.values = x;
   out.method = InitialStateMethod::shooting;
