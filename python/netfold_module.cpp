@@ -356,7 +356,10 @@ std::shared_ptr<VerifyResult> verify_solved(SolvedPtr solved, double rtol) {
 void bind_verify(py::module_& m) {
   py::class_<VerifyResult, std::shared_ptr<VerifyResult>>(
       m, "Verification", "The closed form against CVODE on the full nodal equations (`netfold verify`).")
-      .def_property_readonly("data", [](const VerifyResult& v) { return from_json(netfold::verify_json(v.report)); },
+      .def_property_readonly("data",
+                             [](const VerifyResult& v) {
+                               return from_json(netfold::verify_json(v.report, v.solved->solution().circuit()));
+                             },
                              "The JSON document of `netfold verify --json`, as a dict.")
       .def_property_readonly("passed", [](const VerifyResult& v) { return v.report.passed; })
       .def_property_readonly("max_rel_error", [](const VerifyResult& v) { return v.report.max_rel_error; })
@@ -377,7 +380,7 @@ void bind_verify(py::module_& m) {
       .def("report", [](const VerifyResult& v) {
         return text_of([&](std::ostream& o) { netfold::write_verify_text(o, v.report, v.solved->solution()); });
       }, "The text report of `netfold verify`.")
-      .def("to_json", [](const VerifyResult& v) { return netfold::verify_json(v.report); });
+      .def("to_json", [](const VerifyResult& v) { return netfold::verify_json(v.report, v.solved->solution().circuit()); });
 
   const char* doc = "Integrates the circuit's full nodal equations numerically and compares them with the closed form; "
                     "passes when max |closed - numeric| / max |closed| <= rtol.";

@@ -22,9 +22,19 @@
 ///
 /// CVODE restarts (CVodeReInit) at every event with the state carried over, and never steps
 /// past one; its steps are its own (no fixed step; at most a quarter period of the fastest
-/// sinusoid); no root finding (the events are the schedule's). Every sample is the end of a
-/// step (CVodeSetStopTime at the sample), not an interpolation between steps, which would lose
-/// digits in observables that are small differences of large terms.
+/// sinusoid). Every sample is the end of a step (CVodeSetStopTime at the sample), not an
+/// interpolation between steps, which would lose digits in observables that are small
+/// differences of large terms.
+///
+/// Diodes and contacts that act at a current or voltage zero (the format's state-dependent
+/// events, v2): the configuration includes every diode's state, and the diodes' drops enter as
+/// the unit input (mna.hpp). Within a segment of the schedule CVODE's root finding
+/// (CVodeRootInit) watches, per diode, the conducting one's current, the blocking one's voltage
+/// against its drop and its breakdown, and per armed contact its current or voltage; at a root
+/// the run stops, picks the consistent configuration by its own search, and restarts there
+/// (NumericalRun::events lists what it found). Before t = 0 such a circuit starts from the DC
+/// steady state of its consistent configuration, or with sinusoids from its periodic steady
+/// state, by its own shooting over one period with root finding.
 ///
 /// Nothing of the closed form is used: the run reads the circuit, the schedule (build_schedule:
 /// segments, switch positions, window, resolution), the scenario (applied here with
@@ -165,6 +175,13 @@ struct NumericalRun {
   /// Newton corrections of the periodic steady state's shooting (the most over the groups; 0
   /// without shooting).
   int shooting_iterations = 0;
+
+  /// The state-dependent events the run located itself (diodes changing state at a root of
+  /// CVODE's root functions, contacts at their zero), in time order, t ≥ 0; a diode the
+  /// configuration search changed at the same instant is listed too.
+  std::vector<ScheduledEvent> events;
+  /// The diodes' states at t = 0− (element order; empty without diodes).
+  std::vector<DiodeState> initial_diodes;
 
   double input_scale = 1.0;    ///< S: the power of two the run's inputs were divided by
   double rtol = 0.0;           ///< CVODE's relative tolerance used

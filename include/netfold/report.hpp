@@ -54,8 +54,8 @@ struct SolveReport {
 VerificationSummary summarize_verification(const VerifyReport& report);
 /// The text report of `verify`.
 void write_verify_text(std::ostream& out, const VerifyReport& report, const Solution& solution);
-/// JSON of `verify` (fields of docs/cli.md).
-std::string verify_json(const VerifyReport& report);
+/// JSON of `verify` (fields of docs/cli.md); `circuit` names the elements of its events.
+std::string verify_json(const VerifyReport& report, const Circuit& circuit);
 
 /// Computes figures, totals and ratings of a solution. With sweeps declared in the circuit,
 /// the ratings are judged at the worst case over them (worst_case_ratings, worst.hpp; spec v2

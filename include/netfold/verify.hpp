@@ -9,6 +9,10 @@
 ///     e_y = max_k |y_closed(t_k) − y_numeric(t_k)| / N_y,
 ///     N_y = max(max_k |y_numeric(t_k)|, 1e-6·S_D, 2.2e-308)
 ///
+/// (v2) With diodes or contacts that act at a zero, the event instants are compared too: every
+/// instant of the integrator's events (located by its own root finding) must lie within
+/// rtol × (the window's span from t = 0) of one of the closed form's, and the other way round.
+///
 /// with S_D the largest bound B_y that the circuit puts on the observables of the same dimension
 /// D (V, A or W) — from the sources' magnitudes, the state's and the network's gains, on the
 /// numerical path (NumericalRun::observable_bound); where those are all 0, the bound on any
@@ -80,6 +84,15 @@ struct VerifyReport {
   /// coil_l.i", or why the integration stopped.
   std::string message;
   std::vector<std::string> notes;    ///< how the initial state was found, samples skipped
+  /// (v2) The state-dependent events (diodes, contacts at a zero) in the window: how many
+  /// instants the closed form found (Solution::schedule(), read after both have run) and the
+  /// largest distance, s, from an event instant of either list to the nearest of the other's
+  /// (infinite when only one list has any); the integrator's own are NumericalRun::events.
+  std::size_t closed_events = 0;
+  double max_event_time_error = 0.0;
+  double event_time_at = 0.0;        ///< the instant where it occurs, s
+  /// The largest distance allowed: rtol × the window's span from t = 0 (s).
+  double event_time_tolerance = 0.0;
   NumericalRun numerical;            ///< the numerical waveforms (times, state, values)
 };
 

@@ -33,7 +33,7 @@ Command register_verify(CLI::App& app) {
     Circuit circuit = parse_netlist_file(args->file);
     Solution solution = solve(circuit);
     VerifyReport report = verify_closed_form(solution, options);
-    std::string json = args->json.empty() ? "" : verify_json(report);
+    std::string json = args->json.empty() ? "" : verify_json(report, circuit);
     std::ostringstream text;
     write_verify_text(text, report, solution);
     // One verdict per file in every command: an exceeded rating fails verify too.

@@ -50,11 +50,41 @@ void write_verify_text(std::ostream& out, const VerifyReport& r, const Solution&
                   "{} convergence failures, {} matrix setups, {} factorizations\n",
              r.stats.steps, r.stats.rhs_evals, r.stats.error_test_failures, r.stats.nonlinear_conv_failures,
              r.stats.linear_setups, r.stats.factorizations);
+  if (!r.numerical.events.empty() || r.closed_events > 0) {
+    fmt::print(out, "\nevents located by the integrator's root finding: {} (closed form: {} instants); largest "
+                    "time difference {} (tolerance {})\n",
+               r.numerical.events.size(), r.closed_events,
+               std::isfinite(r.max_event_time_error) ? format_si(r.max_event_time_error, "s", 3) : "unmatched",
+               format_si(r.event_time_tolerance, "s", 3));
+    constexpr std::size_t kListed = 20;
+    for (std::size_t k = 0; k < r.numerical.events.size() && k < kListed; ++k)
+      fmt::print(out, "  {:>14}  {}\n", format_si(r.numerical.events[k].time, "s", 10),
+                 event_text(c, r.numerical.events[k]));
+    if (r.numerical.events.size() > kListed)
+      fmt::print(out, "  ... and {} more (all in the JSON)\n", r.numerical.events.size() - kListed);
+    fmt::print(out, "\n");
+  }
   for (const auto& n : r.notes) fmt::print(out, "note: {}\n", n);
   fmt::print(out, "{}: {}\n", r.passed ? "PASS" : "FAIL", r.message);
 }
 
-std::string verify_json(const VerifyReport& r) {
+namespace {
+
+const char* event_kind_name(EventKind kind) {
+  switch (kind) {
+    case EventKind::switch_closes: return "switch_closes";
+    case EventKind::switch_opens: return "switch_opens";
+    case EventKind::source_steps: return "source_steps";
+    case EventKind::diode_conducts: return "diode_conducts";
+    case EventKind::diode_blocks: return "diode_blocks";
+    case EventKind::diode_breaks_down: return "diode_breaks_down";
+  }
+  return "switch_closes";
+}
+
+}  // namespace
+
+std::string verify_json(const VerifyReport& r, const Circuit& circuit) {
   nlohmann::json j;
   j["method"] = r.method;
   j["rtol"] = detail::json_number(r.rtol);
@@ -83,6 +113,16 @@ std::string verify_json(const VerifyReport& r) {
   j["initial_method"] = initial_state_method_name(r.numerical.initial_method);
   j["message"] = r.message;
   j["notes"] = r.notes;
+  // (v2) The state-dependent events the integrator located, and their comparison.
+  nlohmann::json events = nlohmann::json::array();
+  for (const ScheduledEvent& e : r.numerical.events)
+    events.push_back({{"time", detail::json_number(e.time)},
+                      {"element", circuit.element(e.element).name},
+                      {"kind", event_kind_name(e.kind)}});
+  j["events"] = events;
+  j["closed_events"] = r.closed_events;
+  j["max_event_time_error"] = detail::json_number(r.max_event_time_error);
+  j["event_time_tolerance"] = detail::json_number(r.event_time_tolerance);
   return j.dump(2) + "\n";
 }
 

@@ -49,6 +49,16 @@ int state_jacobian(sunrealtype /*t*/, N_Vector y, N_Vector /*fy*/, SUNMatrix jac
   return 0;
 }
 
+// The watched root functions (StateEquation::roots).
+int state_roots(sunrealtype t, N_Vector y, sunrealtype* gout, void* user_data) {
+  try {
+    static_cast<StateEquation*>(user_data)->roots(t, N_VGetArrayPointer(y), gout);
+    return 0;
+  } catch (...) {
+    return -1;
+  }
+}
+
 std::string flag_name(int flag) {
   char* name = CVodeGetReturnFlagName(flag);
   std::string out = name ? name : fmt::format("flag {}", flag);
@@ -105,6 +115,10 @@ void Integrator::start(StateEquation& eq, double t0, const Eigen::VectorXd& x0, 
   check(CVodeSetUserData(mem_, &eq), "CVodeSetUserData");
   check(CVodeSVtolerances(mem_, rtol, atol_), "CVodeSVtolerances");
   check(CVodeSetMaxStep(mem_, hmax), "CVodeSetMaxStep");
+  if (roots_ > 0) {
+    check(CVodeRootInit(mem_, 0, nullptr), "CVodeRootInit");
+    roots_ = 0;
+  }
   eq_ = &eq;
   t0_ = t0;
   tstop_ = tstop;
@@ -158,6 +172,52 @@ bool Integrator::advance_to(double t, Eigen::VectorXd& x) {
   x_ = Eigen::Map<const Eigen::VectorXd>(y, n);
   x = x_;
   return true;
+}
+
+void Integrator::watch_roots() {
+  const std::vector<Watch>& w = eq_->watches();
+  roots_ = static_cast<int>(w.size());
+  check(CVodeRootInit(mem_, roots_, roots_ > 0 ? state_roots : nullptr), "CVodeRootInit");
+  if (roots_ == 0) return;
+  std::vector<int> direction;
+  for (const Watch& x : w) direction.push_back(x.direction);
+  check(CVodeSetRootDirection(mem_, direction.data()), "CVodeSetRootDirection");
+  // A function that is zero at the start and stays zero is no root (CVODE's own test): no
+  // warning either.
+  check(CVodeSetNoInactiveRootWarn(mem_), "CVodeSetNoInactiveRootWarn");
+}
+
+Integrator::Reached Integrator::advance_until(double t, Eigen::VectorXd& x, double& at, std::vector<int>& fired) {
+  at = std::min(t, tstop_);
+  fired.clear();
+  if (roots_ == 0 || at <= t_ || (t_ == t0_ && at - t0_ <= 4.0 * std::numeric_limits<double>::epsilon() *
+                                                               std::max(std::fabs(t_), std::fabs(at))))
+    return advance_to(t, x) ? Reached::target : Reached::stopped;
+  const long remaining = budget_->limit - budget_->used - (counters().steps - base_.steps);
+  if (remaining <= 0) return stop_for_budget(at) ? Reached::target : Reached::stopped;
+  check(CVodeSetMaxNumSteps(mem_, remaining), "CVodeSetMaxNumSteps");
+  check(CVodeSetStopTime(mem_, at), "CVodeSetStopTime");
+  sunrealtype tret = t_;
+  const int flag = CVode(mem_, at, y_, &tret, CV_NORMAL);
+  if (flag == CV_TOO_MUCH_WORK) return stop_for_budget(at) ? Reached::target : Reached::stopped;
+  if (flag < 0) {
+    sunrealtype tcur = t_;
+    CVodeGetCurrentTime(mem_, &tcur);
+    status_ = IntegrationStatus::failed;
+    message_ = fmt::format("CVODE stopped at t = {} on its way to {} with {} ({}){}{}", format_si(tcur, "s"),
+                           format_si(at, "s"), flag_name(flag), flag, last_error_.empty() ? "" : ": ", last_error_);
+    return Reached::stopped;
+  }
+  const auto n = static_cast<Eigen::Index>(n_);
+  const double* y = N_VGetArrayPointer(y_);
+  t_ = flag == CV_ROOT_RETURN ? tret : at;
+  x_ = Eigen::Map<const Eigen::VectorXd>(y, n);
+  x = x_;
+  if (flag != CV_ROOT_RETURN) return Reached::target;
+  fired.assign(static_cast<std::size_t>(roots_), 0);
+  check(CVodeGetRootInfo(mem_, fired.data()), "CVodeGetRootInfo");
+  at = tret;
+  return Reached::root;
 }
 
 void Integrator::finish() {

@@ -2,7 +2,9 @@
 // CVODE (BDF, Newton, a dense Newton matrix) on one StateEquation at a time, restarted at every
 // event; private to src/verify/.
 
+#include <cstdint>
 #include <string>
+#include <vector>
 
 #include <Eigen/Dense>
 
@@ -40,6 +42,14 @@ class Integrator {
              const Eigen::VectorXd& atol, double hmax);
   // Advances to t (t0 ≤ t ≤ tstop) and gives x(t); false when the run had to stop (status()).
   bool advance_to(double t, Eigen::VectorXd& x);
+  // Watches the equation's root functions (StateEquation::watches) from now until the next
+  // start(); none: watches nothing.
+  void watch_roots();
+  // What advance_until met.
+  enum class Reached : std::uint8_t { target, root, stopped };
+  // Like advance_to, but stops at the first root of a watched function before t: then `at` is
+  // its time, x the (interpolated) state there and `fired` says which functions crossed.
+  Reached advance_until(double t, Eigen::VectorXd& x, double& at, std::vector<int>& fired);
   // ∫x dt from the start to the last output (quadrature runs only).
   const Eigen::VectorXd& quadrature() const { return q_; }
   // Adds the counters of the run since the last start() to the totals and to the budget.
@@ -70,6 +80,7 @@ class Integrator {
   void check(int flag, const char* what);
   IntegrationStats counters() const;
   bool stop_for_budget(double t);
+  int roots_ = 0;  // functions watched since the last watch_roots()
   static void on_error(int code, const char* module, const char* function, char* msg, void* self);
 };
 

@@ -12,8 +12,10 @@
 
 #include "netfold/units.hpp"
 #include "verify/cvode_integrator.hpp"
+#include "verify/diode_steady_state.hpp"
 #include "verify/initial_state.hpp"
 #include "verify/state_equation.hpp"
+#include "verify/state_events.hpp"
 
 namespace netfold {
 
@@ -281,6 +283,7 @@ void compute_bounds(Run& r) {
     for (double x : out.states[k]) magnitudes[k] = std::max(magnitudes[k], std::fabs(x));
   }
   for (const auto& sig : r.signals) magnitudes.push_back(sig.magnitude());
+  magnitudes.push_back(1.0);  // the diodes' unit input, where a configuration has one
   out.observable_bound.assign(out.values.size(), 0.0);
   std::vector<const Configuration*> seen;
   for (const Configuration* cfg : r.seg_config) {
@@ -311,6 +314,128 @@ void collect(Run& r, const Integrator& cv, const IntegrationStats& shooting, lon
     out.message += fmt::format(" (t = 0 to the window's end holds {:.3g} periods of the fastest sinusoid, {}): "
                                "shorten the window, or raise the budget",
                                freqs.back() * r.s.window.to, format_si(freqs.back(), "Hz"));
+}
+
+// The states' scale of a run with state events (see prepare_segments): the stored energy's
+// swing, and the forced response in each segment's switch positions with every diode blocking
+// and with every diode conducting (where those configurations are well posed), so that the
+// tolerances know the states' size before the diodes' own configurations are met.
+void event_tolerances(Run& r, Configurations& configs, const IntegrateOptions& options, double unit) {
+  std::vector<double> state_scale(r.n, 0.0);
+  const std::vector<ElementId> storages = r.circuit.storage_elements();
+  double energy = 0.0;
+  for (std::size_t k = 0; k < r.n && k < r.out.initial_states.size(); ++k) {
+    const double x = r.out.initial_states[k] / r.scale;
+    energy += 0.5 * r.circuit.element(storages[k]).value * x * x;
+    state_scale[k] = std::fabs(x);
+  }
+  for (std::size_t k = 0; k < r.n; ++k) {
+    const double swing = std::sqrt(2.0 * energy / r.circuit.element(storages[k]).value);
+    state_scale[k] = std::max(state_scale[k], std::isfinite(swing) ? swing : 0.0);
+  }
+  for (const ScheduledSegment& seg : r.s.segments) {
+    std::vector<double> levels;
+    for (const auto& sig : r.signals) levels.push_back(sig.level_at(seg.from));
+    for (DiodeState d : {DiodeState::blocking, DiodeState::forward}) {
+      SwitchPositions p = seg.positions;
+      std::fill(p.diodes.begin(), p.diodes.end(), d);
+      std::string why;
+      const auto modes = configs.modes_for(p, why);
+      const Configuration* cfg = modes ? configs.find(p, *modes, why) : nullptr;
+      if (!cfg) continue;
+      const std::vector<double> x = forcing_scale(*cfg, levels, r.signals, r.s.window.to, unit);
+      for (std::size_t k = 0; k < r.n; ++k) state_scale[k] = std::max(state_scale[k], x[k]);
+    }
+  }
+  r.atol = Eigen::VectorXd::Zero(static_cast<Eigen::Index>(r.n));
+  r.out.state_scale.clear();
+  r.out.atol.clear();
+  for (std::size_t k = 0; k < r.n; ++k) {
+    const double atol = options.atol > 0.0 ? options.atol / r.scale
+                                           : std::max(r.out.rtol * kAtolFraction * state_scale[k], 1e-280);
+    r.atol[static_cast<Eigen::Index>(k)] = atol;
+    r.out.state_scale.push_back(state_scale[k] * r.scale);
+    r.out.atol.push_back(atol * r.scale);
+  }
+}
+
+// The run of a circuit with diodes or contacts acting at a zero (state_events.cpp): the states
+// and diodes at t = 0− found on this path, then segment by segment of the schedule the march,
+// which locates and takes the state events itself. The contacts' own actions carry on across
+// the schedule's segments until a timed event of the same switch.
+void run_with_events(Run& r, const SamplePlan& plan, Configurations& configs, const AppliedScenario& applied,
+                     const IntegrateOptions& options, Integrator& cv, StepBudget& budget, IntegrationStats& shooting) {
+  NumericalRun& out = r.out;
+  const double unit = 1.0 / r.scale;
+  event_tolerances(r, configs, options, unit);
+  EventMarch march(applied, configs, r.signals, unit, cv, out.rtol, r.atol, r.hmax);
+  auto scales = [&] {
+    std::vector<double> s;
+    for (double x : out.state_scale) s.push_back(x / r.scale);
+    return s;
+  };
+  march.set_state_scale(scales());
+  const bool diodes = !diode_elements(r.circuit).empty();
+  SwitchPositions p = positions_before_zero(r.circuit);
+  InitialState initial;
+  try {
+    if (diodes) {
+      march.set_rtol(std::max(1e-13, 1e-2 * out.rtol));
+      initial = diode_initial_state(applied, r.signals, r.scale, march, p);
+      march.set_rtol(out.rtol);
+    } else {
+      initial = find_initial_state(applied, configs, r.signals, r.scale, budget, out.rtol);
+    }
+  } catch (const MarchError& e) {
+    initial.status = IntegrationStatus::failed;
+    initial.message = e.what();
+  }
+  for (Eigen::Index k = 0; k < initial.values.size(); ++k) out.initial_states.push_back(initial.values[k] * r.scale);
+  out.initial_method = initial.method;
+  out.initial_note = initial.note;
+  out.shooting_iterations = initial.shooting_iterations;
+  out.initial_diodes = p.diodes;
+  shooting = initial.stats;
+  if (initial.status != IntegrationStatus::ok) {
+    out.status = cv.status() != IntegrationStatus::ok ? cv.status() : initial.status;
+    out.message = "while finding the steady state before t = 0: " +
+                  (cv.status() != IntegrationStatus::ok ? cv.message() : initial.message);
+    out.initial_states.resize(r.n, 0.0);
+    event_tolerances(r, configs, options, unit);
+    return;
+  }
+  event_tolerances(r, configs, options, unit);
+  march.set_atol(r.atol);
+  march.set_state_scale(scales());
+  Eigen::VectorXd z = initial.values;
+  std::size_t next = 0;
+  try {
+    for (std::uint32_t i = 0; i < r.s.segments.size(); ++i) {
+      const ScheduledSegment& seg = r.s.segments[i];
+      std::vector<double> levels;
+      for (const auto& sig : r.signals) levels.push_back(sig.level_at(seg.from));
+      const SwitchPositions before = p;
+      march.carry_contacts(seg, p);
+      if (diodes && (i == 0 || !(p == before))) {
+        const Eigen::VectorXd fixed = z;
+        std::tie(p, z) = march.settle(p, seg.from, levels, false,
+                                      [&](const Configuration&) { return std::optional(fixed); },
+                                      fmt::format("at t = {}", format_si(seg.from, "s")));
+      }
+      std::vector<double> samples;
+      for (; next < plan.times.size() && plan.segment[next] == i; ++next) samples.push_back(plan.times[next]);
+      const bool done = march.run(seg.from, seg.to, samples, z, p, levels,
+                                  [&](StateEquation& eq, double t, const Eigen::VectorXd& zt) {
+                                    return record(r, eq, t, i, zt);
+                                  });
+      if (!done) break;
+    }
+  } catch (const MarchError& e) {
+    out.status = IntegrationStatus::failed;
+    out.message = e.what();
+  }
+  out.events = march.events;
+  r.seg_config = march.used;
 }
 
 }  // namespace
@@ -348,6 +473,16 @@ NumericalRun integrate_network(const Circuit& circuit, const Schedule& schedule,
   // 2. The states at t = 0−.
   Configurations configs(circuit, observables);
   StepBudget budget{options.max_steps, 0};
+  if (has_state_events(applied)) {
+    // 2'. With diodes or contacts at a zero, the run that locates its own events.
+    out.times.reserve(plan.times.size());
+    Integrator cv(budget, r.n, false);
+    IntegrationStats shooting;
+    run_with_events(r, plan, configs, applied, options, cv, budget, shooting);
+    compute_bounds(r);
+    collect(r, cv, shooting, configs.count());
+    return out;
+  }
   const InitialState initial = find_initial_state(applied, configs, r.signals, r.scale, budget, out.rtol);
   for (Eigen::Index k = 0; k < initial.values.size(); ++k) out.initial_states.push_back(initial.values[k] * r.scale);
   out.initial_method = initial.method;

@@ -39,10 +39,15 @@ std::vector<double> state_gains(const LinearForm& form, const Eigen::MatrixXd& u
   return g;
 }
 
-// Key of a configuration: its positions, then one flag per state held at zero.
+// Key of a configuration: its switch positions, its diodes' states (two bits each), then one
+// flag per state held at zero.
 std::vector<bool> key_of(const SwitchPositions& positions, const std::vector<PortMode>& modes) {
   std::vector<bool> key = positions.closed;
   key.push_back(true);  // separator: the positions' length is fixed per circuit anyway
+  for (DiodeState d : positions.diodes) {
+    key.push_back(d == DiodeState::forward);
+    key.push_back(d == DiodeState::reverse);
+  }
   for (PortMode m : modes) key.push_back(m == PortMode::held_at_zero);
   return key;
 }
@@ -62,6 +67,12 @@ double SourceSignal::sinusoids_at(double t, const std::vector<double>* only) con
     if (only && std::find(only->begin(), only->end(), s.frequency) == only->end()) continue;
     v += s.amplitude * std::cos(kTwoPi * s.frequency * t + s.phase);
   }
+  return v * inv_scale;
+}
+
+double SourceSignal::sinusoid_slope_at(double t) const {
+  double v = 0.0;
+  for (const auto& s : waveform->sinusoids) v -= s.amplitude * kTwoPi * s.frequency * std::sin(kTwoPi * s.frequency * t + s.phase);
   return v * inv_scale;
 }
 
@@ -220,7 +231,8 @@ const Configuration* Configurations::find(const SwitchPositions& positions, cons
 }
 
 std::optional<std::vector<PortMode>> Configurations::modes_for(const SwitchPositions& positions, std::string& why) {
-  if (auto it = modes_.find(positions.closed); it != modes_.end()) return it->second;
+  const std::vector<bool> key = key_of(positions, {});
+  if (auto it = modes_.find(key); it != modes_.end()) return it->second;
   const std::vector<ElementId> states = circuit_.storage_elements();
   std::vector<PortMode> modes(states.size(), PortMode::port);
   if (!lookup(positions, modes, why)) {
@@ -236,7 +248,7 @@ std::optional<std::vector<PortMode>> Configurations::modes_for(const SwitchPosit
     }
     if (!lookup(positions, modes, why)) return std::nullopt;
   }
-  modes_.emplace(positions.closed, modes);
+  modes_.emplace(key, modes);
   return modes;
 }
 
@@ -269,7 +281,30 @@ const Eigen::VectorXd& StateEquation::inputs(double t, const double* x) {
     if (forcing_.sinusoids) v += (*signals_)[k].sinusoids_at(t, only);
     u_[first + static_cast<Eigen::Index>(k)] = v;
   }
+  if (const std::uint32_t unit = config_->system.unit_input(); unit != kNone) u_[unit] = forcing_.unit;
   return u_;
+}
+
+Eigen::VectorXd StateEquation::input_slopes(double t, const double* x) {
+  const auto n = static_cast<Eigen::Index>(size());
+  Eigen::VectorXd du = Eigen::VectorXd::Zero(static_cast<Eigen::Index>(config_->system.input_count()));
+  if (n > 0) {
+    Eigen::VectorXd r(n);
+    rate(t, x, r.data());
+    du.head(n) = r;
+  }
+  const Eigen::Index first = config_->first_source();
+  if (forcing_.sinusoids && forcing_.only.empty())
+    for (std::size_t k = 0; k < signals_->size(); ++k)
+      du[first + static_cast<Eigen::Index>(k)] = (*signals_)[k].sinusoid_slope_at(t);
+  return du;
+}
+
+void StateEquation::roots(double t, const double* x, double* g) {
+  const Eigen::VectorXd& u = inputs(t, x);
+  const Eigen::VectorXd xs = config_->unknowns(u);
+  for (std::size_t i = 0; i < watches_.size(); ++i)
+    g[i] = watches_[i].sign * evaluate(watches_[i].form, xs, u) - watches_[i].level;
 }
 
 void StateEquation::rate(double t, const double* x, double* rate) {
@@ -280,7 +315,7 @@ void StateEquation::rate(double t, const double* x, double* rate) {
 }
 
 std::vector<double> forcing_scale(const Configuration& config, const std::vector<double>& levels,
-                                  const std::vector<SourceSignal>& signals, double span) {
+                                  const std::vector<SourceSignal>& signals, double span, double unit) {
   const auto n = static_cast<Eigen::Index>(config.state_count());
   std::vector<double> x(static_cast<std::size_t>(n), 0.0);
   if (n == 0) return x;
@@ -299,6 +334,8 @@ std::vector<double> forcing_scale(const Configuration& config, const std::vector
     for (const auto& s : signals[k].waveform->sinusoids)
       add(std::complex<double>(sigma, kTwoPi * s.frequency), b, std::fabs(s.amplitude) * signals[k].inv_scale);
   }
+  if (config.system.unit_input() != kNone && config.b.cols() > static_cast<Eigen::Index>(signals.size()))
+    add(sigma, config.b.col(static_cast<Eigen::Index>(signals.size())), std::fabs(unit));
   for (double& v : x)
     if (!std::isfinite(v)) v = 0.0;
   return x;

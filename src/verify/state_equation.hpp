@@ -32,6 +32,8 @@ struct SourceSignal {
 
   // The sinusoids at t; with `only`, just those at these frequencies (Hz).
   double sinusoids_at(double t, const std::vector<double>* only = nullptr) const;
+  // d/dt of the sinusoids at t (the levels are constant between events).
+  double sinusoid_slope_at(double t) const;
   // dc plus the steps taken at or before t.
   double level_at(double t) const;
   // dc plus the steps at negative times: the level "for all t < 0" of the format.
@@ -113,7 +115,7 @@ class Configurations {
   const std::vector<Observable>& observables_;
   std::vector<std::unique_ptr<Configuration>> items_;
   std::unordered_map<std::vector<bool>, std::size_t> index_;  // positions + modes → items_
-  std::unordered_map<std::vector<bool>, std::vector<PortMode>> modes_;  // positions → modes_for
+  std::unordered_map<std::vector<bool>, std::vector<PortMode>> modes_;  // positions (key_of) → modes_for
 
   Configuration* lookup(const SwitchPositions& positions, const std::vector<PortMode>& modes, std::string& why);
   std::unique_ptr<Configuration> assemble(const SwitchPositions& positions, const std::vector<PortMode>& modes,
@@ -126,6 +128,18 @@ struct Forcing {
   std::vector<double> levels;  // per source: its constant level in the segment (scaled)
   bool sinusoids = true;       // false: no sinusoid at all
   std::vector<double> only;    // when not empty: just the sinusoids at these frequencies
+  // The value of the unit input that carries the diodes' drops (NodalSystem::unit_input): 1/S
+  // in the run's units; 0 for an unforced (deviation) run.
+  double unit = 0.0;
+};
+
+// A root function CVODE watches (state_events.cpp): g = sign·y(t, x) − level, y a linear form
+// of the configuration's unknowns and inputs (a diode's current or voltage, a contact's).
+struct Watch {
+  LinearForm form;
+  double sign = 1.0;
+  double level = 0.0;  // in the run's units (÷ S)
+  int direction = -1;  // CVODE's root direction: −1 falling only, 0 either way
 };
 
 // The right-hand side CVODE integrates, dx_k/dt = f_k(t, x) = q_k(t, x)/S_k: q_k the k-th port
@@ -144,6 +158,12 @@ class StateEquation {
   const Eigen::VectorXd& inputs(double t, const double* x);
   // dx/dt at (t, x) into `rate` (n values each).
   void rate(double t, const double* x, double* rate);
+  // du/dt at (t, x): the states' rates, the sinusoids' slopes, 0 for the levels and the unit.
+  Eigen::VectorXd input_slopes(double t, const double* x);
+  // The root functions watched in this run, and their values at (t, x) into `g`.
+  void set_watches(std::vector<Watch> watches) { watches_ = std::move(watches); }
+  const std::vector<Watch>& watches() const { return watches_; }
+  void roots(double t, const double* x, double* g);
   const Configuration& config() const { return *config_; }
   std::size_t size() const { return config_->state_count(); }
 
@@ -153,13 +173,15 @@ class StateEquation {
   Forcing forcing_;
   Eigen::VectorXd offset_;
   Eigen::VectorXd u_;
+  std::vector<Watch> watches_;
 };
 
 // Magnitude the forcing can give each state over a span `span` (s), term by term:
 // Σ_k |((σ + jω − A)⁻¹·b_k)_j|·|term| with σ = 1/span, b_k source k's column of B, ω = 0 for the
 // level (scaled units): the forced response of each term, kept finite by σ where A has a λ = 0
 // mode or a lossless one at ω (a drift or a secular growth over the span).
+// `unit`: the unit input's value (Forcing::unit), a level like the sources'.
 std::vector<double> forcing_scale(const Configuration& config, const std::vector<double>& levels,
-                                  const std::vector<SourceSignal>& signals, double span);
+                                  const std::vector<SourceSignal>& signals, double span, double unit = 0.0);
 
 }  // namespace netfold::integration

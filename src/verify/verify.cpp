@@ -201,6 +201,51 @@ std::string compared_text(const Comparison& cmp, const NumericalRun& run, const 
   return out;
 }
 
+// The closed form's state-dependent events in [0, window end): its schedule's events that are
+// no timed event of the numerical schedule (a diode's, a contact's at its zero).
+std::vector<double> closed_event_times(const Solution& solution, const Schedule& numerical) {
+  std::vector<ScheduledEvent> timed = numerical.events;
+  std::vector<double> out;
+  for (const ScheduledEvent& e : solution.schedule().events) {
+    if (e.time < 0.0 || e.time >= numerical.window.to) continue;
+    const auto same = std::find_if(timed.begin(), timed.end(), [&](const ScheduledEvent& x) {
+      return x.time == e.time && x.element == e.element && x.kind == e.kind;
+    });
+    if (same != timed.end()) {
+      timed.erase(same);
+      continue;
+    }
+    out.push_back(e.time);
+  }
+  return out;
+}
+
+// The largest distance from an instant of `a` to the nearest of `b` (with where), over both ways.
+std::pair<double, double> farthest(const std::vector<double>& a, const std::vector<double>& b) {
+  std::pair<double, double> worst{0.0, 0.0};
+  for (int pass = 0; pass < 2; ++pass) {
+    const auto& from = pass == 0 ? a : b;
+    const auto& to = pass == 0 ? b : a;
+    for (double t : from) {
+      double d = kInfinity;
+      for (double u : to) d = std::min(d, std::fabs(t - u));
+      if (d > worst.first) worst = {d, t};
+    }
+  }
+  return worst;
+}
+
+// Step 5 of verify_closed_form: the event instants of both, once both have run.
+bool compare_events(const Solution& solution, const Schedule& schedule, VerifyReport& report) {
+  const std::vector<double> closed = closed_event_times(solution, schedule);
+  std::vector<double> numeric;
+  for (const ScheduledEvent& e : report.numerical.events) numeric.push_back(e.time);
+  report.closed_events = closed.size();
+  report.event_time_tolerance = report.rtol * (schedule.window.to - std::max(0.0, schedule.window.from));
+  std::tie(report.max_event_time_error, report.event_time_at) = farthest(closed, numeric);
+  return report.max_event_time_error <= report.event_time_tolerance;
+}
+
 }  // namespace
 
 VerifyReport verify_closed_form(const Solution& solution, const VerifyOptions& options) {
@@ -246,7 +291,8 @@ VerifyReport verify_closed_form(const Solution& solution, const VerifyOptions& o
   report.t_at = cmp.t_at;
   report.worst_observable = cmp.worst;
   const std::string compared = compared_text(cmp, run, observables, options.rtol);
-  report.passed = passes(cmp, run, options.rtol);
+  const bool events_agree = compare_events(solution, schedule, report);
+  report.passed = passes(cmp, run, options.rtol) && events_agree;
   if (run.status != IntegrationStatus::ok) {
     report.message = fmt::format("numerical integration did not finish: {} ({} of {} samples compared{}{})",
                                  run.message, run.times.size(), run.planned_samples, run.times.empty() ? "" : ", ",
@@ -256,6 +302,14 @@ VerifyReport verify_closed_form(const Solution& solution, const VerifyOptions& o
     report.message = cmp.not_finite;
   } else if (run.times.empty()) {
     report.message = "no sample of the window lies at or after t = 0: nothing was compared";
+  } else if (!events_agree) {
+    report.message = fmt::format("{}; but the event instants differ: {} located by the integrator, {} by the closed "
+                                 "form, the farthest apart by {} at t = {} (tolerance {})",
+                                 compared, run.events.size(), report.closed_events,
+                                 std::isfinite(report.max_event_time_error)
+                                     ? format_si(report.max_event_time_error, "s")
+                                     : std::string("more than the window"),
+                                 format_si(report.event_time_at, "s"), format_si(report.event_time_tolerance, "s"));
   } else {
     report.message = compared;
   }
