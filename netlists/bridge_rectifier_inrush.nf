@@ -9,16 +9,16 @@ mains:  voltage-source l -> n, cosine 230 Vrms 50 Hz, tolerance 10%   # crest at
 K1:     switch l -> a, closes at 0 s, rated 100 A
 fuse:   resistor a -> b, 150 mohm, rated-i2t 20 A2s    # melting I²t assumed for the example
 r_in:   resistor b -> c, 4.7 ohm, pulse-rated 40 J
-d1:     diode c -> p, forward 0.9 V, on 20 mohm, off 10 Mohm, rated 600 V, rated 150 A
-d2:     diode m -> c, forward 0.9 V, on 20 mohm, off 10 Mohm, rated 600 V, rated 150 A
-d3:     diode n -> p, forward 0.9 V, on 20 mohm, off 10 Mohm, rated 600 V, rated 150 A
-d4:     diode m -> n, forward 0.9 V, on 20 mohm, off 10 Mohm, rated 600 V, rated 150 A
+d1:     diode c -> p, forward 0.9 V, on 20 mohm, off 10 Mohm, rated 600 V, rated 150 A   # d2..d4 alike
+d2:     diode m -> c, forward 0.9 V, on 20 mohm, off 10 Mohm
+d3:     diode n -> p, forward 0.9 V, on 20 mohm, off 10 Mohm
+d4:     diode m -> n, forward 0.9 V, on 20 mohm, off 10 Mohm
 bulk:   capacitor p -> m, 220 uF, rated 400 V
 load:   resistor p -> m, 1 kohm
 
 watch fuse.i, bulk.v
-window 0 .. 200 ms
-sweep mains.phase -180 deg .. 180 deg
+window 0 .. 100 ms
+sweep mains.phase -180 deg .. 180 deg step 15 deg
 
 # Closed at the crest onto the empty capacitor, two diodes conduct at once: by Ohm's law the
 # first current is (325.27 V − 2·0.9 V) / (0.15 + 4.7 + 2·0.02 ohm) = 66.15 A, the largest of

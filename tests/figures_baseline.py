@@ -143,6 +143,7 @@ INTENDED_CHANGES = {
     ("netlists/night_light_dropper.nf", "worst", "/json/sweeps/0/ratings"): "issue 17: C1 rated-dvdt added",
     ("netlists/snubber_contact.nf", "*", "/json/ratings"): "issue 17: K1 rated V added",
     ("*.nf", "solve", "/json/storage_elements"): "new field (spec v2): every storage element, beside 'storage'",
+    ("*.nf", "solve", "/json/segments/*/events"): "new field (spec v2): per segment what started it, with exact times",
     # Issue 12 item 4: a phase sweep of a source with harmonics is a time shift.
     ("netlists/harmonic_supply.nf", "worst", "/json/*"):
         "supply.phase moves the 150 Hz and 250 Hz terms by 3x and 5x the angle (a time shift): worst "

@@ -382,7 +382,8 @@ TEST_CASE("the circuit library covers every element kind, waveform kind, claim k
     for (const auto& sw : c.sweeps()) sweeps.insert(sw.target);
     golden |= c.golden_tolerance().has_value() && fs::exists(fs::path(entry.path()).replace_extension(".golden.csv"));
   }
-  CHECK(kinds.size() == 10);
+  // Every element kind, the diode of the second edition included (11).
+  CHECK(kinds.size() == 11);
   // Every first-edition claim kind (tau .. worst_peak, 13 in all), and the several-state
   // examples' frequency and damping claims; other files may add more second-edition kinds.
   for (int q = 0; q <= static_cast<int>(ClaimQuantity::damping); ++q) {

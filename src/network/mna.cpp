@@ -562,7 +562,18 @@ LinearForm NodalSystem::sensed_current(ElementId id) const {
       // A port in its normal mode drives its state; held at zero, its current came from KCL.
       if (state_input_[id] != kNone) f.inputs.push_back({state_input_[id], 1.0});
       break;
-    default: break;  // open: no current
+    // The others carry current through a branch unknown or an eliminated tree branch (above)
+    // whenever they carry any: here they are open (an open switch or blocking diode with no
+    // 'off', a capacitor that is no port) or their current is not sensed through this path.
+    case ElementKind::resistor:
+    case ElementKind::capacitor:
+    case ElementKind::voltage_source:
+    case ElementKind::switch_:
+    case ElementKind::diode:
+    case ElementKind::vcvs:
+    case ElementKind::vccs:
+    case ElementKind::ccvs:
+    case ElementKind::cccs: break;
   }
   return f;
 }
@@ -596,8 +607,14 @@ LinearForm NodalSystem::element_current(ElementId id) const {
       for (auto& [u, c] : f.inputs) c *= e.value;
       return f;
     }
-    default: return sensed_current(id);
+    case ElementKind::capacitor:
+    case ElementKind::inductor:
+    case ElementKind::voltage_source:
+    case ElementKind::current_source:
+    case ElementKind::vcvs:
+    case ElementKind::ccvs: return sensed_current(id);
   }
+  throw NumericError("unknown element kind");
 }
 
 LinearForm NodalSystem::test_port_current() const {

@@ -73,6 +73,18 @@ std::string quadratic_text(double trace, double det) {
   return fmt::format("s²{}{}", signed_part(-trace, "·s"), signed_part(det, ""));
 }
 
+void write_event_explanation(std::ostream& out) {
+  fmt::print(out,
+             "  4. Diodes and contacts at a zero: each segment is one configuration (which contacts are\n"
+             "     closed, which diodes conduct: a conducting diode is its forward drop plus its 'on'\n"
+             "     resistance, a blocking one its 'off' resistance). The segment ends at the first root of\n"
+             "     its own closed form: a conducting diode's current falling to zero, a blocking diode's\n"
+             "     voltage reaching its drop or breakdown, a contact's current or voltage at zero, found\n"
+             "     by bracketing on the closed form and bisection to the last bit of t. The next\n"
+             "     configuration is the consistent one: every conducting diode's current >= 0, every\n"
+             "     blocking diode's voltage within its blocking range.\n");
+}
+
 void write_states_explanation(std::ostream& out, const Solution& sol, const TermsWriter& terms_text) {
   const Circuit& c = sol.circuit();
   const auto& ids = sol.storage_elements();
@@ -93,8 +105,20 @@ void write_states_explanation(std::ostream& out, const Solution& sol, const Term
   fmt::print(out, "  2. Each element's port quantity is then a linear function of the states and the sources:\n"
                   "     C·dv/dt = i_C and L·di/dt = v_L give the state equation dx/dt = A·x + B·u(t).\n");
   fmt::print(out, "  3. State at t = 0-: {}; every state is continuous across every event.\n", fmt::join(starts, ", "));
-  for (const auto& s : sol.segments()) {
-    fmt::print(out, "\n  segment {}: {} .. {}\n", s.number, si(s.from, "s"), si(s.to, "s"));
+  if (sol.event_driven()) write_event_explanation(out);
+  // Hundreds of diode segments repeat a few configurations: the first ones tell the story.
+  constexpr std::size_t kShownSegments = 12;
+  for (std::size_t k = 0; k < sol.segments().size(); ++k) {
+    const Segment& s = sol.segments()[k];
+    if (k == kShownSegments) {
+      fmt::print(out, "\n  … {} more segments, each derived in the same way in its own configuration\n",
+                 sol.segments().size() - k);
+      break;
+    }
+    fmt::print(out, "\n  segment {}: {} .. {}{}{}\n", s.number, si(s.from, "s"), si(s.to, "s"),
+               sol.event_driven() ? ", " : "", sol.event_driven() ? configuration_text(c, s.positions) : "");
+    if (sol.event_driven() && k + 1 < sol.segments().size())
+      fmt::print(out, "    ended by: {}\n", fmt::join(sol.segments()[k + 1].changes, ", "));
     const StateSpace ss = state_space(c, sol.network(s));
     const Eigen::MatrixXd& a = ss.a;
     if (a.rows() <= 4) {

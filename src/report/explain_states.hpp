@@ -17,6 +17,8 @@ using TermsWriter = std::function<std::string(const response::Response&, std::st
 
 /// The derivation of a solution with several storage elements (write_explanation's part).
 void write_states_explanation(std::ostream& out, const Solution& sol, const TermsWriter& terms_text);
+// How the segments of a circuit with diodes or contacts at a zero begin and end.
+void write_event_explanation(std::ostream& out);
 
 /// "s² + 1.2e3·s + 4e6": the characteristic polynomial s² − tr·s + det with its numbers.
 std::string quadratic_text(double trace, double det);

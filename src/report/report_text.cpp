@@ -305,13 +305,14 @@ void write_solve_text(std::ostream& out, const SolveReport& report) {
 void write_explanation(std::ostream& out, const Solution& sol) {
   const Circuit& c = sol.circuit();
   fmt::print(out, "\nderivation\n");
-  if (sol.several_states()) {
+  if (sol.modal_path() && !sol.storage_elements().empty()) {
     detail::write_states_explanation(out, sol, terms_expression);
     return;
   }
   if (sol.storage() == kNone) {
     fmt::print(out, "  no capacitor or inductor: each segment is a resistive network; every quantity is a fixed\n"
                     "  combination of the source values, y(t) = Σ k_j·u_j(t), solved once per segment by MNA\n");
+    if (sol.event_driven()) detail::write_event_explanation(out);
     return;
   }
   const Element& st = c.element(sol.storage());

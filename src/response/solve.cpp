@@ -32,8 +32,9 @@ const ReducedNetwork& Solution::network(const Segment& segment) const {
 
 Drive Solution::drive_of(const std::vector<double>& c, const Segment& segment) const {
   Drive d;
+  const std::uint32_t first = network(segment).system().first_source_input();
   for (std::size_t k = 0; k < sources_.size(); ++k) {
-    double coef = c.at(k + 1);
+    double coef = c.at(first + k);
     if (coef == 0.0) continue;
     // The waveform under the scenario: a swept phase is already in it (apply_scenario).
     const Waveform& w = applied_.waveform(sources_[k]);

@@ -130,7 +130,13 @@ const Configuration& EventMarch::configuration(const SwitchPositions& p, const s
   return cfg;
 }
 
-void EventMarch::carry_contacts(const ScheduledSegment& seg, SwitchPositions& p) const {
+void EventMarch::carry_contacts(const ScheduledSegment& seg, SwitchPositions& p) {
+  // A timed event of a contact ends what its action at a zero left it in (the schedule's
+  // position holds from then on).
+  for (const auto& ev : seg.changes)
+    if (ev.kind == EventKind::switch_closes || ev.kind == EventKind::switch_opens)
+      for (const auto& a : contacts_)
+        if (a.element == ev.element) carried_[a.slot] = -1;
   p.closed = seg.positions.closed;
   for (std::size_t slot = 0; slot < carried_.size(); ++slot)
     if (carried_[slot] >= 0) p.closed[slot] = carried_[slot] == 1;

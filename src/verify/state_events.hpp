@@ -68,7 +68,7 @@ class EventMarch {
 
   // The schedule segment's switch positions with the contacts' own actions carried on until an
   // event of the segment changes that switch again.
-  void carry_contacts(const ScheduledSegment& seg, SwitchPositions& p) const;
+  void carry_contacts(const ScheduledSegment& seg, SwitchPositions& p);
 
   void set_atol(Eigen::VectorXd atol) { atol_ = std::move(atol); }
   void set_rtol(double rtol) { rtol_ = rtol; }
