@@ -393,9 +393,21 @@ TEST_CASE("every example in netlists/ passes, and fails with its time constants 
     for (const auto& seg : s.segments()) has_time_constant |= std::isfinite(seg.tau) && seg.tau > 0.0;
     if (has_time_constant) {
       seams::ScopedFaults fault({.tau_scale = 1.01});
-      VerifyReport wrong = check(c);
-      INFO("with tau x 1.01: " << wrong.message);
-      CHECK_FALSE(wrong.passed);
+      // With diodes the wrong time constants also move the states off the diodes' thresholds, and
+      // the closed form may then chatter at a clamp (a sliding mode it refuses to follow): a
+      // refusal is as good as a failed cross-check, a pass is not.
+      std::string outcome;
+      bool caught = false;
+      try {
+        VerifyReport wrong = check(c);
+        outcome = wrong.message;
+        caught = !wrong.passed;
+      } catch (const InputError& e) {
+        outcome = e.what();
+        caught = s.event_driven() && std::string(e.what()).find("chattering") != std::string::npos;
+      }
+      INFO("with tau x 1.01: " << outcome);
+      CHECK(caught);
     }
     ++files;
   }

@@ -254,8 +254,12 @@ void place_event_labels(const PlotData& data, Layout& L) {
         break;
       }
     }
-    if (row < 0)  // every row is taken here: overlap where the overlap is least
-      row = static_cast<int>(std::min_element(row_end.begin(), row_end.end()) - row_end.begin());
+    if (row < 0) {
+      // Every row is taken here (a rectifier's hundreds of diode events): the line stays, drawn
+      // light, and the label is left out rather than written over the others.
+      L.labels[k].clear();
+      continue;
+    }
     row_end[static_cast<std::size_t>(row)] = L.label_left[k] + width[k];
     L.label_row[k] = row;
     L.event_rows = std::max(L.event_rows, row + 1);
@@ -452,9 +456,10 @@ void draw_panel(std::string& out, const PlotData& data, const Layout& L, std::si
 
   for (std::size_t k = 0; k < L.events.size(); ++k) {
     double x = L.x_of(L.events[k]);
-    put(out, "<line class=\"event\" x1=\"{:.2f}\" y1=\"{:.2f}\" x2=\"{:.2f}\" y2=\"{:.2f}\" stroke=\"#555555\" "
+    const bool labelled = L.label_row[k] >= 0;
+    put(out, "<line class=\"event\" x1=\"{:.2f}\" y1=\"{:.2f}\" x2=\"{:.2f}\" y2=\"{:.2f}\" stroke=\"{}\" "
              "stroke-width=\"1\" stroke-dasharray=\"5,4\"/>\n",
-        x, p.plot_top, x, bottom);
+        x, p.plot_top, x, bottom, labelled ? "#555555" : "#d8d8d8");
     if (index == 0 && L.label_row[k] >= 0) {
       put(out, "<text class=\"event-label\" x=\"{:.2f}\" y=\"{:.2f}\" font-size=\"{}\" fill=\"#333333\">{}</text>\n",
           L.label_left[k], p.plot_top - 4.0 - L.label_row[k] * kEventRow, kSmallFontSize, escape_xml(L.labels[k]));

@@ -345,7 +345,7 @@ void StateSolver::solve_segments(Solution& s) {
 
   Eigen::VectorXd x = Eigen::Map<const Eigen::VectorXd>(s.initial_states_.data(), n);
   double scale = n > 0 ? x.cwiseAbs().maxCoeff() : 0.0;
-  Chatter chatter;
+  Chatter chatter(s.window_.to - std::min(s.window_.from, 0.0));
   for (std::size_t k = 0; k < s.schedule_.segments.size(); ++k) {
     Segment seg = scheduled_segment(c, s.schedule_.segments[k], k);
     seg.positions.diodes = diodes;

@@ -62,13 +62,20 @@ struct FoundEvent {
 };
 
 /// Counts events that do not advance time; fails naming the elements past a limit (chattering).
+/// Also fails when events come in a long run each advancing less than a tiny share of the span
+/// (a sliding mode: the diodes switch back and forth faster than the circuit can be resolved),
+/// and past a total number of events in the span.
 class Chatter {
  public:
+  explicit Chatter(double span) : span_(span) {}
   void count(const Circuit& c, const ScheduledEvent& event, double from);
 
  private:
-  double last_time_ = -1.0;
+  double span_;
+  int rapid_ = 0;
+  long total_ = 0;
   std::vector<ElementId> elements_;
+  std::vector<ElementId> rapid_elements_;
 };
 
 /// The diodes' states and the storage elements' states at t = 0−.

@@ -41,8 +41,16 @@ namespace {
 constexpr double kEdge = 1e-9;
 // Diodes whose configurations the search may try one by one (2^12 = 4096 configurations).
 constexpr std::size_t kMaxEnumerated = 12;
+// Diodes whose configurations are all tried at t = 0 to prove the chosen one unique (2^8).
+constexpr std::size_t kMaxUniqueChecked = 8;
 // Events in a row that do not advance time before the march calls it chattering.
 constexpr int kMaxStalledEvents = 64;
+// Events in a row, each advancing less than kRapidShare of the span, before the march calls it
+// chattering: the diodes would switch back and forth millions of times (a sliding mode).
+constexpr int kMaxRapidEvents = 1000;
+constexpr double kRapidShare = 1e-7;
+// Events in one march before it gives up (a bridge on 50 Hz makes about 200 per second).
+constexpr long kMaxEvents = 100'000;
 // Events within one period of the steady-state search before it gives up.
 constexpr int kMaxPeriodEvents = 10'000;
 // Newton iterations of the periodic steady state.
@@ -256,6 +264,7 @@ struct Verdict {
   std::vector<std::size_t> violated;   // diodes (slots) out of their state
   std::vector<DiodeState> to;          // where each goes
   std::vector<std::size_t> floating;   // blocking diodes whose voltage the network leaves undefined
+  bool strict = true;                  // every margin clear of its threshold (none decided by a slope)
 };
 
 // A candidate's states: the fixed state at an event, or the steady state of the candidate
@@ -272,6 +281,9 @@ class ConfigurationSearch {
         ids_(diode_ids(s.circuit())), drives_(input_drives(s, before_zero, t)) {}
 
   // The consistent configuration nearest to `guess` (see the file comment), and its states.
+  /// Makes find() prove its answer unique (at t = 0: see require_unique).
+  void check_unique() { check_unique_ = true; }
+
   std::pair<SwitchPositions, Eigen::VectorXd> find(SwitchPositions guess, const std::string& where) {
     where_ = where;
     std::set<std::vector<DiodeState>> seen;
@@ -280,7 +292,10 @@ class ConfigurationSearch {
     for (std::size_t step = 0; step < 2 * ids_.size() + 4; ++step) {
       Eigen::VectorXd x;
       Verdict v = judge(p, x);
-      if (v.valid && v.violated.empty()) return {p, x};
+      if (v.valid && v.violated.empty()) {
+        if (v.strict && check_unique_) require_unique(p, where);
+        return {p, x};
+      }
       remember(v);
       if (!v.valid || !seen.insert(p.diodes).second) break;
       for (std::size_t k = 0; k < v.violated.size(); ++k) p.diodes[v.violated[k]] = v.to[k];
@@ -304,6 +319,7 @@ class ConfigurationSearch {
   std::vector<Drive> drives_;
   std::set<std::size_t> ever_violated_, ever_floating_;
   bool any_valid_ = false;
+  bool check_unique_ = false;
   std::string where_;
 
   void remember(const Verdict& v) {
@@ -352,6 +368,7 @@ class ConfigurationSearch {
         const double tolerance = kEdge * (q.size + std::fabs(cond.level));
         const double slope = dc_only_ ? 0.0 : cond.sign * q.slope;
         const bool holds = margin > tolerance || (margin >= -tolerance && slope >= -kEdge * q.slope_size);
+        v.strict = v.strict && margin > tolerance;
         if (!holds) {
           v.violated.push_back(slot);
           v.to.push_back(cond.fails_to);
@@ -362,17 +379,42 @@ class ConfigurationSearch {
     return v;
   }
 
-  // Every configuration of up to kMaxEnumerated diodes, fewest conducting first.
-  std::optional<std::pair<SwitchPositions, Eigen::VectorXd>> enumerate(SwitchPositions p) {
+  // At t = 0 (where no earlier configuration guides the choice) a second configuration that is
+  // consistent with every margin clear of its threshold is an ambiguity the spec makes an error;
+  // configurations that are consistent only at a threshold (a circuit with nothing driving its
+  // diodes) do not count. Checked for up to kMaxUniqueChecked diodes.
+  void require_unique(const SwitchPositions& chosen, const std::string& where) {
+    if (ids_.size() > kMaxUniqueChecked) return;
+    for (const auto& states : all_configurations()) {
+      if (states == chosen.diodes) continue;
+      SwitchPositions q = chosen;
+      q.diodes = states;
+      Eigen::VectorXd x;
+      const Verdict v = judge(q, x);
+      if (!(v.valid && v.violated.empty() && v.strict)) continue;
+      std::vector<ElementId> differ;
+      for (std::size_t k = 0; k < ids_.size(); ++k)
+        if (states[k] != chosen.diodes[k]) differ.push_back(ids_[k]);
+      const Circuit& c = s_.circuit();
+      fail(c, c.element(differ.front()).loc,
+           fmt::format("two states of the diodes are consistent {}: {} may conduct or block, and nothing in the "
+                       "circuit decides which; give the diodes their 'on' resistance and forward drop, or the "
+                       "resistance that is really in series with them",
+                       where, names_of(c, differ)));
+    }
+  }
+
+  // Every configuration of the diodes (each blocking or conducting, and in breakdown where it
+  // has one), or none past 2^14 of them.
+  std::vector<std::vector<DiodeState>> all_configurations() const {
     const std::size_t d = ids_.size();
-    if (d > kMaxEnumerated) return std::nullopt;
     std::vector<std::vector<DiodeState>> choices(d);
     std::size_t total = 1;
     for (std::size_t k = 0; k < d; ++k) {
       choices[k] = {DiodeState::blocking, DiodeState::forward};
       if (s_.circuit().element(ids_[k]).breakdown) choices[k].push_back(DiodeState::reverse);
       total *= choices[k].size();
-      if (total > (std::size_t{1} << 14)) return std::nullopt;
+      if (total > (std::size_t{1} << 14)) return {};
     }
     std::vector<std::vector<DiodeState>> all;
     all.reserve(total);
@@ -385,6 +427,13 @@ class ConfigurationSearch {
       }
       all.push_back(std::move(states));
     }
+    return all;
+  }
+
+  // Every configuration of up to kMaxEnumerated diodes, fewest conducting first.
+  std::optional<std::pair<SwitchPositions, Eigen::VectorXd>> enumerate(SwitchPositions p) {
+    if (ids_.size() > kMaxEnumerated) return std::nullopt;
+    std::vector<std::vector<DiodeState>> all = all_configurations();
     auto conducting = [](const std::vector<DiodeState>& v) {
       return std::count_if(v.begin(), v.end(), [](DiodeState s) { return s != DiodeState::blocking; });
     };
@@ -394,7 +443,10 @@ class ConfigurationSearch {
       p.diodes = std::move(states);
       Eigen::VectorXd x;
       Verdict v = judge(p, x);
-      if (v.valid && v.violated.empty()) return std::make_pair(p, x);
+      if (v.valid && v.violated.empty()) {
+        if (v.strict && check_unique_) require_unique(p, where_);
+        return std::make_pair(p, x);
+      }
       remember(v);
     }
     return std::nullopt;
@@ -450,18 +502,41 @@ double fundamental_period(const Solution& s, const std::vector<Drive>& u) {
 }  // namespace
 
 void Chatter::count(const Circuit& c, const ScheduledEvent& event, double from) {
+  auto unique_ids = [](std::vector<ElementId> ids) {
+    std::sort(ids.begin(), ids.end());
+    ids.erase(std::unique(ids.begin(), ids.end()), ids.end());
+    return ids;
+  };
+  if (++total_ > kMaxEvents)
+    fail(c, c.element(event.element).loc,
+         fmt::format("the diodes and contacts change state more than {} times in {} (the last at {}); netfold does "
+                     "not follow so many events: shorten the window",
+                     kMaxEvents, format_si(span_, "s"), format_si(event.time, "s")));
+  const double advance = event.time - from;
+  if (advance < kRapidShare * span_) {
+    rapid_elements_.push_back(event.element);
+    if (++rapid_ >= kMaxRapidEvents) {
+      const std::vector<ElementId> ids = unique_ids(rapid_elements_);
+      fail(c, c.element(ids.front()).loc,
+           fmt::format("{} change state {} times in a row before {}, each time after less than {} (chattering): "
+                       "the circuit switches them back and forth faster than it can be followed; give the diodes an "
+                       "'on' resistance or a forward drop, or add the resistance that is really in series with them",
+                       names_of(c, ids), kMaxRapidEvents, format_si(event.time, "s"),
+                       format_si(kRapidShare * span_, "s")));
+    }
+  } else {
+    rapid_ = 0;
+    rapid_elements_.clear();
+  }
   // A segment shorter than this share of its time is no advance (a few roundings of t).
   const double slack = 1e-12 * std::max(std::fabs(event.time), 1e-9);
-  if (event.time - from > slack) {
+  if (advance > slack) {
     elements_.clear();
-    last_time_ = event.time;
     return;
   }
   elements_.push_back(event.element);
   if (static_cast<int>(elements_.size()) < kMaxStalledEvents) return;
-  std::vector<ElementId> ids = elements_;
-  std::sort(ids.begin(), ids.end());
-  ids.erase(std::unique(ids.begin(), ids.end()), ids.end());
+  const std::vector<ElementId> ids = unique_ids(elements_);
   fail(c, c.element(ids.front()).loc,
        fmt::format("{} change state {} times at {} without time advancing (chattering): the circuit switches them "
                    "back and forth at one instant; give the diodes an 'on' resistance or a forward drop, or add the "
@@ -491,6 +566,7 @@ void StateSolver::settle_diodes(Solution& s, Segment& seg, const Eigen::VectorXd
   const std::vector<DiodeState> before = seg.positions.diodes;
   ConfigurationSearch search(s, *s.cache_, seg.from, seg.number == 0, false,
                              [&](const ReducedNetwork&, const StateSpace&) { return std::optional(x); }, scale);
+  if (seg.from == 0.0) search.check_unique();
   seg.positions = search.find(seg.positions, fmt::format("at {}", format_si(seg.from, "s"))).first;
   const std::vector<ElementId> ids = diode_ids(c);
   for (std::size_t k = 0; k < ids.size(); ++k) {
@@ -554,6 +630,7 @@ DiodeStart StateSolver::diode_start(Solution& s, bool all_given) {
     }
     ConfigurationSearch search(s, *s.cache_, 0.0, true, false,
                                [&](const ReducedNetwork&, const StateSpace&) { return std::optional(x); });
+    search.check_unique();
     out.diodes = search.find(pre, where).first.diodes;
     out.steady.x = x;
     return out;
@@ -570,6 +647,7 @@ DiodeStart StateSolver::diode_start(Solution& s, bool all_given) {
   const double period = fundamental_period(s, drives);
   if (period == 0.0) {
     ConfigurationSearch search(s, *s.cache_, 0.0, true, true, steady_of);
+    search.check_unique();
     auto [p, x] = search.find(pre, where);
     out.diodes = p.diodes;
     out.steady.x = x;
@@ -585,7 +663,7 @@ DiodeStart StateSolver::diode_start(Solution& s, bool all_given) {
     ConfigurationSearch start(s, *s.cache_, t, true, false,
                               [&](const ReducedNetwork&, const StateSpace&) { return std::optional(x); }, scale);
     SwitchPositions p = start.find(last, where).first;
-    Chatter chatter;
+    Chatter chatter(period);
     for (int events = 0;; ++events) {
       if (events > kMaxPeriodEvents)
         fail(c, c.element(anchor_element(s)).loc,
