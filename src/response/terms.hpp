@@ -105,6 +105,9 @@ Response combine(const std::vector<const Response*>& xs, const std::vector<doubl
 /// ∫_{s0}^{s1} s^k·e^{z·s} ds, 0 ≤ s0 ≤ s1, in closed form.
 Complex moment(int k, Complex z, double s0, double s1);
 
+/// The same for every k = 0..k_max at once (one recurrence serves them all).
+std::vector<Complex> moments(int k_max, Complex z, double s0, double s1);
+
 /// ∫ y(t) dt over [from, to] ⊆ [t0, t1], exactly.
 double integral(const Response& y, double from, double to);
 

@@ -16,7 +16,9 @@
 
 #include <algorithm>
 #include <cmath>
+#include <iterator>
 #include <numbers>
+#include <vector>
 
 #include "response/terms.hpp"
 
@@ -47,7 +49,7 @@ std::vector<Complex> unit_moments(int k, Complex w) {
       for (int n = 0; n < 40; ++n) {
         if (n > 0) term *= w / static_cast<double>(n);
         sum += term / static_cast<double>(n + j + 1);
-        if (std::abs(term) < 1e-18) break;
+        if (std::norm(term) < 1e-36) break;  // |term| < 1e-18, without a hypot
       }
       e[static_cast<std::size_t>(j)] = sum;
     }
@@ -118,28 +120,74 @@ std::vector<Monomial> monomials(const Response& y, double s_max) {
 
 }  // namespace
 
-Complex moment(int k, Complex z, double s0, double s1) {
+std::vector<Complex> moments(int k_max, Complex z, double s0, double s1) {
+  std::vector<Complex> out(static_cast<std::size_t>(k_max) + 1, Complex(0.0, 0.0));
   const double h = s1 - s0;
-  if (!(h > 0.0)) return 0.0;
-  const auto e = unit_moments(k, z * h);
+  if (!(h > 0.0)) return out;
+  const auto e = unit_moments(k_max, z * h);
   // ∫_{s0}^{s1} s^k e^{zs} ds = e^{z·s0}·Σ_j C(k, j)·s0^{k−j}·h^{j+1}·E_j(z·h).
-  Complex sum = 0.0;
-  double binom = 1.0;
-  for (int j = 0; j <= k; ++j) {
-    if (j > 0) binom *= static_cast<double>(k - j + 1) / j;
-    const double s0_power = (k - j == 0) ? 1.0 : std::pow(s0, k - j);
-    if (s0_power == 0.0) continue;
-    sum += binom * s0_power * std::pow(h, j + 1) * e[static_cast<std::size_t>(j)];
+  std::vector<double> h_power(static_cast<std::size_t>(k_max) + 2, h), s0_power(static_cast<std::size_t>(k_max) + 1, 1.0);
+  for (std::size_t j = 1; j < h_power.size(); ++j) h_power[j] = h_power[j - 1] * h;
+  for (std::size_t j = 1; j < s0_power.size(); ++j) s0_power[j] = s0_power[j - 1] * s0;
+  const Complex shift = s0 == 0.0 ? Complex(1.0, 0.0) : std::exp(z * s0);
+  for (int k = 0; k <= k_max; ++k) {
+    Complex sum = 0.0;
+    double binom = 1.0;
+    for (int j = 0; j <= k; ++j) {
+      if (j > 0) binom *= static_cast<double>(k - j + 1) / j;
+      const double s0_k_j = s0_power[static_cast<std::size_t>(k - j)];
+      if (s0_k_j == 0.0) continue;
+      sum += binom * s0_k_j * h_power[static_cast<std::size_t>(j)] * e[static_cast<std::size_t>(j)];
+    }
+    out[static_cast<std::size_t>(k)] = shift * sum;
   }
-  return s0 == 0.0 ? sum : std::exp(z * s0) * sum;
+  return out;
 }
+
+Complex moment(int k, Complex z, double s0, double s1) { return moments(k, z, s0, s1)[static_cast<std::size_t>(k)]; }
+
+namespace {
+
+// Monomials gathered by their exponent: Σ_k c[k]·s^k·e^{z·s} for each distinct z. The products
+// of two expanded φ terms share one z across dozens of powers; one moments() call serves them all.
+class MonomialSum {
+ public:
+  void add(Complex z, int k, Complex c) {
+    auto it = std::find_if(groups_.begin(), groups_.end(), [&](const Group& g) { return g.z == z; });
+    if (it == groups_.end()) {
+      groups_.push_back({z, {}});
+      it = std::prev(groups_.end());
+    }
+    if (it->c.size() <= static_cast<std::size_t>(k)) it->c.resize(static_cast<std::size_t>(k) + 1, Complex(0.0, 0.0));
+    it->c[static_cast<std::size_t>(k)] += c;
+  }
+
+  // The real part of the sum's integral over [s0, s1].
+  double integral(double s0, double s1) const {
+    double sum = 0.0;
+    for (const auto& g : groups_) {
+      const auto m = moments(static_cast<int>(g.c.size()) - 1, g.z, s0, s1);
+      for (std::size_t k = 0; k < g.c.size(); ++k) sum += (g.c[k] * m[k]).real();
+    }
+    return sum;
+  }
+
+ private:
+  struct Group {
+    Complex z;
+    std::vector<Complex> c;
+  };
+  std::vector<Group> groups_;
+};
+
+}  // namespace
 
 double integral(const Response& y, double from, double to) {
   if (!(to > from)) return 0.0;
   const double s0 = from - y.t0, s1 = to - y.t0;
-  double sum = 0.0;
-  for (const auto& m : monomials(y, s1)) sum += (m.c * moment(m.k, m.z, s0, s1)).real();
-  return sum;
+  MonomialSum sum;
+  for (const auto& m : monomials(y, s1)) sum.add(m.z, m.k, m.c);
+  return sum.integral(s0, s1);
 }
 
 double integral_of_product(const Response& f, const Response& g, double from, double to) {
@@ -147,14 +195,14 @@ double integral_of_product(const Response& f, const Response& g, double from, do
   const double s0 = from - f.t0, s1 = to - f.t0;
   const auto mf = monomials(f, s1), mg = monomials(g, s1);
   // Re(A)·Re(B) = ½·Re(A·B) + ½·Re(A·conj B).
-  double sum = 0.0;
+  MonomialSum sum;
   for (const auto& a : mf)
     for (const auto& b : mg) {
       const int k = a.k + b.k;
-      sum += 0.5 * (a.c * b.c * moment(k, a.z + b.z, s0, s1)).real();
-      sum += 0.5 * (a.c * std::conj(b.c) * moment(k, a.z + std::conj(b.z), s0, s1)).real();
+      sum.add(a.z + b.z, k, 0.5 * a.c * b.c);
+      sum.add(a.z + std::conj(b.z), k, 0.5 * a.c * std::conj(b.c));
     }
-  return sum;
+  return sum.integral(s0, s1);
 }
 
 }  // namespace netfold::response

@@ -42,8 +42,9 @@ double minimum_in(const Response& y, double a, double b) {
 
 }  // namespace
 
-std::optional<double> first_fall(const Response& y, double level, double from, double to, double tolerance) {
-  if (!(to > from)) return std::nullopt;
+namespace {
+
+std::optional<double> first_fall_in(const Response& y, double level, double from, double to, double tolerance) {
   const std::vector<double> ts = bracketing_grid(y, from, to);
   double t_prev = ts.front();
   double g_prev = y.value(t_prev) - level, d_prev = y.derivative(t_prev);
@@ -61,6 +62,32 @@ std::optional<double> first_fall(const Response& y, double level, double from, d
     d_prev = d;
   }
   return std::nullopt;
+}
+
+// The span scanned at a time: one period of the slowest sinusoid, or all of it without one.
+double scan_chunk(const Response& y, double span) {
+  double f_min = 0.0;
+  for (const auto& p : y.periodic.phasors)
+    if (p.frequency > 0.0 && (f_min == 0.0 || p.frequency < f_min)) f_min = p.frequency;
+  return f_min > 0.0 ? std::min(span, 1.0 / f_min) : span;
+}
+
+}  // namespace
+
+std::optional<double> first_fall(const Response& y, double level, double from, double to, double tolerance) {
+  if (!(to > from)) return std::nullopt;
+  // A period at a time: the first crossing is usually in the first one, and a long segment (a
+  // rectifier's last, or a window of fifty periods) need not be gridded whole to find it. The
+  // grid of each period is as fine as the whole one's, so no crossing is missed.
+  const double chunk = scan_chunk(y, to - from);
+  for (std::size_t k = 0;; ++k) {
+    const double a = from + static_cast<double>(k) * chunk;
+    const double b = std::min(to, from + static_cast<double>(k + 1) * chunk);
+    if (to - b < 1e-9 * chunk) {
+      return first_fall_in(y, level, a, to, tolerance);
+    }
+    if (auto t = first_fall_in(y, level, a, b, tolerance)) return t;
+  }
 }
 
 }  // namespace netfold::response

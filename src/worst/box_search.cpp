@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 #include <functional>
+#include <map>
 #include <numeric>
 
 #include <fmt/format.h>
@@ -63,16 +64,19 @@ class BoxEvaluator {
   }
 
   std::vector<double> all_metrics(const Point& x) const {
-    return with_solution(x, [&](const Solution& s) {
-      std::vector<double> v(metrics());
-      for (std::size_t m = 0; m < v.size(); ++m) v[m] = metric(s, m);
-      return v;
+    if (auto it = memo_.find(x); it != memo_.end()) return it->second;
+    std::vector<double> v = with_solution(x, [&](const Solution& s) {
+      std::vector<double> out(metrics());
+      for (std::size_t m = 0; m < out.size(); ++m) out[m] = metric(s, m);
+      return out;
     });
+    memo_.emplace(x, v);
+    return v;
   }
 
-  double value(const Point& x, std::size_t m) const {
-    return with_solution(x, [&](const Solution& s) { return metric(s, m); });
-  }
+  // Every metric at once, remembered by point: the refinements of the worst and the best of each
+  // metric start from the same grid cells and often pass the same points.
+  double value(const Point& x, std::size_t m) const { return all_metrics(x)[m]; }
 
   std::vector<CornerValue> corner(const Point& x) const {
     std::vector<CornerValue> out = tol_;
@@ -109,6 +113,7 @@ class BoxEvaluator {
   const std::vector<Observable>& observables_;
   const std::vector<RatingCheck>& ratings_;
   std::shared_ptr<NetworkCache> cache_;
+  mutable std::map<Point, std::vector<double>> memo_;
 };
 
 std::vector<double> even_axis(double lo, double hi, std::size_t intervals) {
@@ -306,9 +311,22 @@ std::pair<Point, double> refine(const BoxEvaluator& ev, const std::vector<std::v
     auto r = axes.empty() ? std::make_pair(x0, f(x0)) : nelder_mead_max(f, x0, lo, hi, cell);
     // The grid point itself stays the answer when the polish does not improve it.
     if (sign * v[idx] >= r.second) r = {x0, sign * v[idx]};
-    if (r.second > best.second) best = r;
+    // Equal maxima (a bridge's half-cycles mirror each other) go to the smaller point, so the
+    // argument reported does not hang on the last bits of two equal figures.
+    if (best.first.empty()) {
+      best = r;
+      continue;
+    }
+    const double tie = 1e-12 * std::max(std::fabs(r.second), std::fabs(best.second));
+    if (r.second > best.second + tie || (std::fabs(r.second - best.second) <= tie && r.first < best.first)) best = r;
   }
   return {best.first, sign * best.second};
+}
+
+// The grid point of v's least value, and the value.
+std::pair<Point, double> least_on_grid(const std::vector<std::vector<double>>& axes, const std::vector<double>& v) {
+  const auto idx = static_cast<std::size_t>(std::min_element(v.begin(), v.end()) - v.begin());
+  return {grid_point(idx, axes), v[idx]};
 }
 
 // [metric][sample]: every metric at `options.samples` points drawn uniformly over the box, each
@@ -370,7 +388,11 @@ SweepResult search_box(const Circuit& c, const std::vector<Sweep>& targets, cons
   for (std::size_t m = 0; m < ev.metrics(); ++m) {
     SweepExtreme ex;
     auto [worst_x, worst_v] = refine(ev, axes, values[m], m, 1.0);
-    auto [best_x, best_v] = refine(ev, axes, values[m], m, -1.0);
+    // Where only the ratings are wanted (solve's and check's table), a rating's best is read
+    // only to tell a flat figure from a swept one: the grid's least value does that.
+    auto [best_x, best_v] = options.scope == WorstScope::ratings_only && m >= observables.size()
+                                ? least_on_grid(axes, values[m])
+                                : refine(ev, axes, values[m], m, -1.0);
     ex.worst = worst_v;
     ex.best = best_v;
     ex.worst_point.assign(worst_x.begin(), worst_x.begin() + static_cast<std::ptrdiff_t>(n_targets));
