@@ -271,8 +271,8 @@ def bridge(vpk, phase, rs, vf, ron, roff, c, rl):
 # The leakages (off resistances) differ from diode to diode. With four equal ones the two diodes
 # of a conducting pair reach zero current within picoseconds of each other (the blocking pair's
 # leakages cancel in the difference of their currents), so which stops first — and so when its
-# partner's leakage current ends, some 10 ns to 30 ns later — would be decided by rounding.
-# Unequal leakages make the order definite (about 1 ns apart).
+# partner's leakage current ends, some 10 µs to 30 µs later — would be decided by rounding.
+# Unequal leakages make the order definite (the two zeros 1 ns to 4 ns apart here).
 # R_s = fuse 100 mohm + r_in 2.2 ohm in series.
 BRIDGE = dict(vpk=VPK, phase=0.0, rs=2.3, vf=1.0, ron=0.015, roff=(10e6, 5e6, 10e6, 5e6), c=330e-6, rl=470.0)
 BRIDGE_NF = """title "Bridge rectifier closed at the crest onto an empty bulk capacitor"
