@@ -18,3 +18,12 @@ set_tests_properties(figures_baseline PROPERTIES TIMEOUT 600 LABELS "baseline")
 add_test(NAME scipy_rc_closing
          COMMAND /usr/bin/python3 ${PROJECT_SOURCE_DIR}/tests/scipy_rc_closing.py $<TARGET_FILE:netfold>)
 set_tests_properties(scipy_rc_closing PROPERTIES SKIP_RETURN_CODE 77 TIMEOUT 600 LABELS "scipy;worst")
+
+# Diode handling against SciPy's Radau with event functions on hand-derived state equations of
+# a half-wave rectifier switched on from empty, a bridge closed at the crest and a half-wave in
+# its periodic steady state: event instants, diode states, waveforms, peaks, and the textbook
+# first-pulse current, ripple and conduction angle (tests/scipy_rectifier.py). It exits 77, a
+# skip, where SciPy is absent.
+add_test(NAME scipy_rectifier
+         COMMAND /usr/bin/python3 ${PROJECT_SOURCE_DIR}/tests/scipy_rectifier.py $<TARGET_FILE:netfold>)
+set_tests_properties(scipy_rectifier PROPERTIES SKIP_RETURN_CODE 77 TIMEOUT 600 LABELS "scipy;diode")
