@@ -12,7 +12,7 @@
 #
 # Environment: NETFOLD_BENCH_TMP (scratch for generated files, default /tmp/netfold_bench),
 # NETFOLD_BENCH_GRID_SIZES (bench_states (d): grid sizes with 100 capacitors, default "10000 100000"),
-# BENCH_ONLY (space-separated subset of: solve sweep factor parse spsolve states worst_box memory),
+# BENCH_ONLY (space-separated subset of: solve sweep factor parse spsolve states worst_box diodes memory),
 # BENCH_MEMORY_SIZES (grid sizes of (e), default "1000 10000 100000 1000000"),
 # BENCH_ARGS (extra flags for every bench_* executable, e.g. --benchmark_filter=...).
 # Needs /usr/bin/time (Debian package `time`) and /usr/bin/python3 with python3-scipy.
@@ -24,7 +24,7 @@ out=${2:-$build/bench-results}
 mkdir -p "$out"
 export NETFOLD_BENCH_TMP=${NETFOLD_BENCH_TMP:-/tmp/netfold_bench}
 mkdir -p "$NETFOLD_BENCH_TMP"
-only=${BENCH_ONLY:-solve sweep factor parse spsolve states worst_box memory}
+only=${BENCH_ONLY:-solve sweep factor parse spsolve states worst_box diodes memory}
 read -r -a extra <<< "${BENCH_ARGS:-}"
 
 wants() { [[ " $only " == *" $1 "* ]]; }
@@ -56,7 +56,7 @@ run_bench() {
   echo "load average after bench_$name: $(cut -d' ' -f1-3 /proc/loadavg)" >> "$out/machine.txt"
 }
 
-for b in solve sweep factor parse spsolve states worst_box; do
+for b in solve sweep factor parse spsolve states worst_box diodes; do
   if wants "$b"; then run_bench "$b"; fi
 done
 
