@@ -285,17 +285,18 @@ void StateSolver::solve_segment(Solution& s, Segment& seg, Eigen::VectorXd& x, d
   const Circuit& c = s.circuit();
   const std::vector<ElementId>& states = s.storages_;
   const auto n = static_cast<Eigen::Index>(states.size());
-  const std::string where = segment_text(c, seg);
+  // Formatted only for a message: a rectifier's march solves hundreds of segments.
+  auto where = [&] { return segment_text(c, seg); };
   seg.modes.clear();
   // Inductors whose only path is open are held at zero where they carry none.
   std::vector<PortMode> modes(states.size(), PortMode::port);
   const ReducedNetwork* net = &s.cache_->get(seg.positions, modes);
   for (const auto& p : net->system().problems()) {
-    if (p.kind != TopologyProblem::Kind::inductor_open) report_states_problem(s, p, where, x, seg.from);
-    if (p.elements.size() > 1) report_dependent_inductors(s, p, where);
+    if (p.kind != TopologyProblem::Kind::inductor_open) report_states_problem(s, p, where(), x, seg.from);
+    if (p.elements.size() > 1) report_dependent_inductors(s, p, where());
     for (ElementId id : p.elements) {
       const auto i = static_cast<std::size_t>(std::find(states.begin(), states.end(), id) - states.begin());
-      if (std::fabs(x(static_cast<Eigen::Index>(i))) > kZeroState * scale) report_states_problem(s, p, where, x, seg.from);
+      if (std::fabs(x(static_cast<Eigen::Index>(i))) > kZeroState * scale) report_states_problem(s, p, where(), x, seg.from);
       modes[i] = PortMode::held_at_zero;
       x(static_cast<Eigen::Index>(i)) = 0.0;
     }
@@ -303,9 +304,9 @@ void StateSolver::solve_segment(Solution& s, Segment& seg, Eigen::VectorXd& x, d
   if (std::find(modes.begin(), modes.end(), PortMode::held_at_zero) != modes.end()) {
     net = &s.cache_->get(seg.positions, modes);
     seg.mode = PortMode::held_at_zero;
-    for (const auto& p : net->system().problems()) report_states_problem(s, p, where, x, seg.from);
+    for (const auto& p : net->system().problems()) report_states_problem(s, p, where(), x, seg.from);
   }
-  if (net->rcond() < kSingularRcond) report_singular(c, *net, where);
+  if (net->rcond() < kSingularRcond) report_singular(c, *net, where());
   seg.rcond = net->rcond();
   seg.solver = net->solver_name();
   seg.network = net;
@@ -322,7 +323,7 @@ void StateSolver::solve_segment(Solution& s, Segment& seg, Eigen::VectorXd& x, d
          fmt::format("the response of {} cannot be computed to an accuracy netfold can vouch for: {}; no figure "
                      "is given (check for elements of nearly equal value that make modes nearly coincide, or "
                      "values far apart)",
-                     where, modal->accuracy().reason));
+                     where(), modal->accuracy().reason));
   for (const auto& m : modal->modes()) seg.modes.push_back(natural_mode(m));
   seg.tau = slowest_tau(seg.modes);
   seg.rate = std::isfinite(seg.tau) && seg.tau != 0.0 ? -1.0 / seg.tau : 0.0;
@@ -330,7 +331,7 @@ void StateSolver::solve_segment(Solution& s, Segment& seg, Eigen::VectorXd& x, d
   if (seg.unstable()) {
     std::string warning = fmt::format("{} is unstable: a mode grows as e^(t/{}); a controlled source supplies more "
                                       "than the network absorbs",
-                                      where, format_si(-seg.tau, "s"));
+                                      where(), format_si(-seg.tau, "s"));
     // A segment solved again after a state event cut it short says it once.
     if (s.warnings_.empty() || s.warnings_.back() != warning) s.warnings_.push_back(std::move(warning));
   }
