@@ -218,7 +218,7 @@ TEST_CASE("issue 12 item 10: a golden file holding a non-finite value is refused
   write_file(nf, coil(18.0));
   std::string golden = csv_of(coil(18.0));
   std::string all_inf = golden.substr(0, golden.find('\n') + 1);
-  for (std::size_t row = 0; row < 1201; ++row) all_inf += fmt::format("{},inf,inf\n", row * 50e-6);
+  for (std::size_t row = 0; row < 1201; ++row) all_inf += fmt::format("{},inf,inf\n", static_cast<double>(row) * 50e-6);
   write_file(dir.path() / "coil.golden.csv", all_inf);
   std::optional<GoldenResult> r = check_golden(solve(parse_netlist_file(nf)), nf, false);
   REQUIRE(r);
