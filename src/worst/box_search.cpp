@@ -63,15 +63,21 @@ class BoxEvaluator {
     return std::fabs(rating_stress(s, r.element, r.kind).value);
   }
 
+  // Every metric at x, remembered for the refinements (the grid and Nelder–Mead points).
   std::vector<double> all_metrics(const Point& x) const {
     if (auto it = memo_.find(x); it != memo_.end()) return it->second;
-    std::vector<double> v = with_solution(x, [&](const Solution& s) {
+    std::vector<double> v = fresh_metrics(x);
+    memo_.emplace(x, v);
+    return v;
+  }
+
+  // Every metric at x, not remembered: Monte Carlo points never repeat.
+  std::vector<double> fresh_metrics(const Point& x) const {
+    return with_solution(x, [&](const Solution& s) {
       std::vector<double> out(metrics());
       for (std::size_t m = 0; m < out.size(); ++m) out[m] = metric(s, m);
       return out;
     });
-    memo_.emplace(x, v);
-    return v;
   }
 
   // Every metric at once, remembered by point: the refinements of the worst and the best of each
@@ -339,7 +345,7 @@ std::vector<std::vector<double>> sample_box(const BoxEvaluator& ev, const std::v
     Point x(axes.size());
     for (std::size_t k = 0; k < axes.size(); ++k)
       x[k] = axes[k].front() + sampler.next() * (axes[k].back() - axes[k].front());
-    auto v = ev.all_metrics(x);
+    auto v = ev.fresh_metrics(x);
     for (std::size_t m = 0; m < v.size(); ++m) samples[m][i] = v[m];
   }
   return samples;
